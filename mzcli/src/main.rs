@@ -1,0 +1,3 @@
+//! `mzsift`: command-line batch screening of mzML acquisitions.
+
+fn main() {}

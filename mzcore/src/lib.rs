@@ -1,0 +1,7 @@
+//! `mzcore`: the library behind `mzsift`.
+
+pub mod error;
+pub mod mzml;
+pub mod spectrum;
+
+pub use error::{Error, ErrorKind, Position, Result};
