@@ -1,3 +1,52 @@
 //! `mzsift`: command-line batch screening of mzML acquisitions.
+//!
+//! The binary is a thin layer over `mzcore`: it parses arguments, writes data to stdout and
+//! messages to stderr (`mzsift: <file>: <where>: <cause>`), and maps outcomes to exit codes.
 
-fn main() {}
+mod cmd;
+mod output;
+
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+/// Streams mzML acquisitions, centroids their spectra and flags chlorine/bromine isotope
+/// signatures and odd nominal molecular ions. Flags are screening hints, not identifications.
+#[derive(Parser, Debug)]
+#[command(name = "mzsift", version, about, long_about = None)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand, Debug)]
+enum Command {
+    /// One TSV row per spectrum, computed from the decoded arrays.
+    #[command(
+        after_help = "Examples:\n  mzsift list fixtures/variant-zlib-f64.mzML\n  mzsift list run.mzML.gz > spectra.tsv"
+    )]
+    List(cmd::list::ListArgs),
+    /// Summary of a file: counts per MS level, RT range, polarity, encodings, index, checksum.
+    #[command(
+        after_help = "Examples:\n  mzsift info fixtures/variant-zlib-f64.mzML\n  mzsift info --verify --format json run.mzML"
+    )]
+    Info(cmd::info::InfoArgs),
+}
+
+fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(e) => {
+            let _ = e.print();
+            return ExitCode::from(if e.use_stderr() { output::USAGE } else { output::OK });
+        }
+    };
+    let stdout = std::io::stdout();
+    let mut out = std::io::BufWriter::new(stdout.lock());
+    let result = match &cli.command {
+        Command::List(a) => cmd::list::run(a, &mut out),
+        Command::Info(a) => cmd::info::run(a, &mut out),
+    };
+    let flushed = std::io::Write::flush(&mut out).map_err(anyhow::Error::from);
+    output::finish(result.and_then(|code| flushed.map(|_| code)))
+}

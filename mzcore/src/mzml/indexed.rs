@@ -1,0 +1,234 @@
+//! Random access to spectra of a seekable `indexedmzML` file through its index.
+
+use std::collections::HashMap;
+use std::fs::File;
+use std::io::{BufRead, BufReader, Read, Seek, SeekFrom};
+use std::path::Path;
+
+use crate::error::{Error, ErrorKind, Position, Result};
+use crate::mzml::reader::{Reader, ReaderOptions};
+use crate::spectrum::Spectrum;
+
+/// Reads single spectra by native id or index through the `indexList` of an indexed mzML
+/// (mzML 1.1.0 idx schema: `indexListOffset` gives the byte offset of `indexList`).
+///
+/// # Examples
+///
+/// ```
+/// use std::io::Cursor;
+/// use mzcore::mzml::{IndexedReader, Writer, WriterOptions};
+/// use mzcore::spectrum::{Peaks, SpectrumMeta};
+///
+/// let mut w = Writer::new(Vec::new(), WriterOptions { spectrum_count: 2, ..Default::default() })?;
+/// for id in ["scan=1", "scan=2"] {
+///     let meta = SpectrumMeta { id: id.into(), ms_level: 1, ..Default::default() };
+///     w.write_spectrum(&meta, &Peaks { mz: vec![150.0], intensity: vec![1.0] })?;
+/// }
+/// let doc = w.finish()?;
+/// let mut r = IndexedReader::new(Cursor::new(doc))?;
+/// assert_eq!(r.len(), 2);
+/// assert_eq!(r.by_id("scan=2")?.meta.index, 1);
+/// # Ok::<_, mzcore::Error>(())
+/// ```
+pub struct IndexedReader<R: BufRead + Seek> {
+    inner: R,
+    options: ReaderOptions,
+    header: crate::mzml::reader::Header,
+    index: Vec<(String, u64)>,
+    by_id: HashMap<String, usize>,
+}
+
+impl IndexedReader<BufReader<File>> {
+    /// Opens a plain (not gzip-compressed) indexed mzML file.
+    pub fn from_path(path: impl AsRef<Path>) -> Result<Self> {
+        IndexedReader::new(BufReader::new(File::open(path)?))
+    }
+}
+
+impl<R: BufRead + Seek> IndexedReader<R> {
+    /// Reads the header and the index of `inner`.
+    pub fn new(inner: R) -> Result<Self> {
+        Self::with_options(inner, ReaderOptions::default())
+    }
+
+    /// Reads the header and the index of `inner` with `options` for later spectra.
+    pub fn with_options(mut inner: R, options: ReaderOptions) -> Result<Self> {
+        let header = read_header(&mut inner, options)?;
+        let list_offset = find_index_list_offset(&mut inner)?;
+        inner.seek(SeekFrom::Start(list_offset))?;
+        let index = read_index_list(&mut inner, list_offset)?;
+        let by_id = index.iter().enumerate().map(|(i, (id, _))| (id.clone(), i)).collect();
+        Ok(IndexedReader { inner, options, header, index, by_id })
+    }
+
+    /// Number of spectra in the index.
+    pub fn len(&self) -> usize {
+        self.index.len()
+    }
+
+    /// True when the index lists no spectra.
+    pub fn is_empty(&self) -> bool {
+        self.index.is_empty()
+    }
+
+    /// Native ids and offsets, in index order.
+    pub fn index(&self) -> &[(String, u64)] {
+        &self.index
+    }
+
+    /// The spectrum at position `i` of the index.
+    pub fn by_index(&mut self, i: usize) -> Result<Spectrum> {
+        let (id, offset) = self
+            .index
+            .get(i)
+            .cloned()
+            .ok_or_else(|| Error::new(ErrorKind::NotFound(format!("at index {i}"))))?;
+        self.read_at(&id, offset)
+    }
+
+    /// The spectrum with native id `id`.
+    pub fn by_id(&mut self, id: &str) -> Result<Spectrum> {
+        let i = *self
+            .by_id
+            .get(id)
+            .ok_or_else(|| Error::new(ErrorKind::NotFound(format!("with id '{id}'"))))?;
+        self.by_index(i)
+    }
+
+    fn read_at(&mut self, id: &str, offset: u64) -> Result<Spectrum> {
+        self.inner.seek(SeekFrom::Start(offset))?;
+        let mut reader =
+            Reader::continue_at(&mut self.inner, self.options, self.header.clone(), offset)?;
+        let mut s = Spectrum::default();
+        let wrong_place = || {
+            Error::at(
+                ErrorKind::IndexMismatch { id: id.to_owned(), indexed: offset, actual: u64::MAX },
+                Position { spectrum_id: Some(id.to_owned()), ..Position::at_byte(offset) },
+            )
+        };
+        match reader.read_spectrum(&mut s) {
+            Ok(true) if s.meta.id == id && reader.last_start() == Some(offset) => Ok(s),
+            Ok(_) => Err(wrong_place()),
+            Err(e) => Err(e),
+        }
+    }
+}
+
+/// Reads from the start up to the `spectrumList` start tag, gathering the header context.
+fn read_header<R: BufRead + Seek>(
+    inner: &mut R,
+    options: ReaderOptions,
+) -> Result<crate::mzml::reader::Header> {
+    inner.seek(SeekFrom::Start(0))?;
+    let mut reader = Reader::with_options(&mut *inner, options)?;
+    reader.read_header()?;
+    Ok(reader.header().clone())
+}
+
+/// Finds `<indexListOffset>N</indexListOffset>` in the last KiBs of the file.
+fn find_index_list_offset<R: Read + Seek>(inner: &mut R) -> Result<u64> {
+    let len = inner.seek(SeekFrom::End(0))?;
+    let tail_len = len.min(4096);
+    inner.seek(SeekFrom::Start(len - tail_len))?;
+    let mut tail = Vec::with_capacity(tail_len as usize);
+    inner.take(tail_len).read_to_end(&mut tail)?;
+    let tag = b"indexListOffset>";
+    let start = memchr::memmem::rfind(&tail, b"<indexListOffset>").ok_or_else(|| {
+        Error::at(
+            ErrorKind::NotMzml("no <indexListOffset> at the end of the file (not indexed)".into()),
+            Position::at_byte(len),
+        )
+    })? + 1
+        + tag.len();
+    let end = start
+        + memchr::memchr(b'<', &tail[start..]).ok_or_else(|| {
+            Error::at(ErrorKind::Truncated { complete_spectra: 0 }, Position::at_byte(len))
+        })?;
+    let text = String::from_utf8_lossy(&tail[start..end]);
+    let at = len - tail_len + start as u64;
+    let offset: u64 = text.trim().parse().map_err(|_| {
+        Error::at(
+            ErrorKind::InvalidValue { field: "indexListOffset".into(), value: text.to_string() },
+            Position::at_byte(at),
+        )
+    })?;
+    if offset >= len {
+        return Err(Error::at(
+            ErrorKind::IndexMismatch { id: "indexList".into(), indexed: offset, actual: u64::MAX },
+            Position::at_byte(at),
+        ));
+    }
+    Ok(offset)
+}
+
+/// Parses `<indexList>` at the current position: the spectrum index's ids and offsets.
+fn read_index_list<R: BufRead>(inner: &mut R, base: u64) -> Result<Vec<(String, u64)>> {
+    use quick_xml::events::Event;
+    let mut xml = quick_xml::Reader::from_reader(inner);
+    let mut buf = Vec::new();
+    let mut out = Vec::new();
+    let mut in_spectrum_index = false;
+    let mut current: Option<String> = None;
+    let mut seen_list = false;
+    loop {
+        buf.clear();
+        let ev = xml.read_event_into(&mut buf).map_err(|e| {
+            Error::at(ErrorKind::Xml(e.to_string()), Position::at_byte(base + xml.error_position()))
+        })?;
+        match ev {
+            Event::Start(e) => match e.local_name().as_ref() {
+                b"indexList" => seen_list = true,
+                b"index" => {
+                    in_spectrum_index = e
+                        .try_get_attribute("name")
+                        .ok()
+                        .flatten()
+                        .is_some_and(|a| a.value.as_ref() == b"spectrum");
+                }
+                b"offset" if in_spectrum_index => {
+                    let id = e
+                        .try_get_attribute("idRef")
+                        .ok()
+                        .flatten()
+                        .and_then(|a| a.unescape_value().ok().map(|v| v.into_owned()))
+                        .unwrap_or_default();
+                    current = Some(id);
+                }
+                _ if !seen_list => {
+                    return Err(Error::at(
+                        ErrorKind::IndexMismatch {
+                            id: "indexList".into(),
+                            indexed: base,
+                            actual: u64::MAX,
+                        },
+                        Position::at_byte(base),
+                    ));
+                }
+                _ => {}
+            },
+            Event::Text(t) => {
+                if let Some(id) = current.take() {
+                    let s = String::from_utf8_lossy(&t);
+                    let off = s.trim().parse().map_err(|_| {
+                        Error::at(
+                            ErrorKind::InvalidValue {
+                                field: format!("index offset of '{id}'"),
+                                value: s.to_string(),
+                            },
+                            Position::at_byte(base + xml.buffer_position()),
+                        )
+                    })?;
+                    out.push((id, off));
+                }
+            }
+            Event::End(e) if e.local_name().as_ref() == b"indexList" => return Ok(out),
+            Event::Eof => {
+                return Err(Error::at(
+                    ErrorKind::Truncated { complete_spectra: 0 },
+                    Position::at_byte(base + xml.buffer_position()),
+                ));
+            }
+            _ => {}
+        }
+    }
+}

@@ -1,0 +1,153 @@
+//! The byte source under the XML tokenizer: gzip detection, SHA-1 of consumed bytes, and a
+//! ceiling on the bytes one XML event may span.
+
+use std::io::{self, BufRead, BufReader, Read};
+
+use flate2::bufread::MultiGzDecoder;
+use sha1::{Digest, Sha1};
+
+/// Plain or gzip-decompressed input, chosen from the first two bytes (gzip magic 1F 8B,
+/// RFC 1952 section 2.3.1).
+pub(crate) enum Inner<R: BufRead> {
+    Plain(R),
+    Gzip(Box<BufReader<MultiGzDecoder<R>>>),
+}
+
+impl<R: BufRead> Inner<R> {
+    pub(crate) fn detect(mut reader: R) -> io::Result<Self> {
+        let head = loop {
+            match reader.fill_buf() {
+                Ok(b) => break b,
+                Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
+                Err(e) => return Err(e),
+            }
+        };
+        if head.len() >= 2 && head[0] == 0x1f && head[1] == 0x8b {
+            Ok(Inner::Gzip(Box::new(BufReader::with_capacity(
+                256 * 1024,
+                MultiGzDecoder::new(reader),
+            ))))
+        } else {
+            Ok(Inner::Plain(reader))
+        }
+    }
+
+    pub(crate) fn is_gzip(&self) -> bool {
+        matches!(self, Inner::Gzip(_))
+    }
+
+    pub(crate) fn get_ref(&self) -> &R {
+        match self {
+            Inner::Plain(r) => r,
+            Inner::Gzip(g) => g.get_ref().get_ref(),
+        }
+    }
+
+    pub(crate) fn get_mut(&mut self) -> &mut R {
+        match self {
+            Inner::Plain(r) => r,
+            Inner::Gzip(g) => g.get_mut().get_mut(),
+        }
+    }
+
+    pub(crate) fn into_inner(self) -> R {
+        match self {
+            Inner::Plain(r) => r,
+            Inner::Gzip(g) => g.into_inner().into_inner(),
+        }
+    }
+}
+
+impl<R: BufRead> Read for Inner<R> {
+    fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
+        match self {
+            Inner::Plain(r) => r.read(buf),
+            Inner::Gzip(g) => g.read(buf),
+        }
+    }
+}
+
+impl<R: BufRead> BufRead for Inner<R> {
+    fn fill_buf(&mut self) -> io::Result<&[u8]> {
+        match self {
+            Inner::Plain(r) => r.fill_buf(),
+            Inner::Gzip(g) => g.fill_buf(),
+        }
+    }
+
+    fn consume(&mut self, amt: usize) {
+        match self {
+            Inner::Plain(r) => r.consume(amt),
+            Inner::Gzip(g) => g.consume(amt),
+        }
+    }
+}
+
+/// Marker put in the `io::Error` raised when one event grows beyond the ceiling.
+#[derive(Debug)]
+pub(crate) struct EventTooLarge(pub(crate) u64);
+
+impl std::fmt::Display for EventTooLarge {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "one XML element or text run exceeds {} bytes", self.0)
+    }
+}
+
+impl std::error::Error for EventTooLarge {}
+
+/// Counts and optionally hashes every consumed byte; refuses to hand out more than
+/// `event_limit` bytes between two calls of [`Tracked::start_event`].
+pub(crate) struct Tracked<R: BufRead> {
+    pub(crate) inner: Inner<R>,
+    hasher: Option<Sha1>,
+    consumed: u64,
+    event_start: u64,
+    event_limit: u64,
+}
+
+impl<R: BufRead> Tracked<R> {
+    pub(crate) fn new(inner: Inner<R>, hash: bool, event_limit: u64) -> Self {
+        Tracked { inner, hasher: hash.then(Sha1::new), consumed: 0, event_start: 0, event_limit }
+    }
+
+    /// Marks the start of a new XML event for the size ceiling.
+    pub(crate) fn start_event(&mut self) {
+        self.event_start = self.consumed;
+    }
+
+    /// Stops hashing and returns the lower-case hex SHA-1 of everything consumed so far.
+    pub(crate) fn finish_hash(&mut self) -> Option<String> {
+        self.hasher
+            .take()
+            .map(|h| h.finalize().iter().map(|b| format!("{b:02x}")).collect::<String>())
+    }
+}
+
+impl<R: BufRead> Read for Tracked<R> {
+    fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
+        let available = self.fill_buf()?;
+        let n = available.len().min(buf.len());
+        buf[..n].copy_from_slice(&available[..n]);
+        self.consume(n);
+        Ok(n)
+    }
+}
+
+impl<R: BufRead> BufRead for Tracked<R> {
+    fn fill_buf(&mut self) -> io::Result<&[u8]> {
+        if self.consumed - self.event_start > self.event_limit {
+            return Err(io::Error::other(EventTooLarge(self.event_limit)));
+        }
+        self.inner.fill_buf()
+    }
+
+    fn consume(&mut self, amt: usize) {
+        if let Some(h) = &mut self.hasher {
+            if let Ok(buf) = self.inner.fill_buf() {
+                h.update(&buf[..amt.min(buf.len())]);
+            }
+        }
+        self.consumed += amt as u64;
+        self.inner.consume(amt);
+    }
+}
