@@ -230,37 +230,28 @@ pub fn encode_linear(data: &[f64], fixed_point: f64) -> Vec<u8> {
 /// As the reference encoder computes it: `floor(i32::MAX / m)` where `m` is the largest of the
 /// first two values and of `ceil(|r| + 1)` over the prediction residuals `r`; for one value,
 /// `floor(i32::MAX / x)`; for no values, 0. Where that formula gives no usable fixed point
-/// (all-zero or negative data, where the reference returns infinity or a negative number),
-/// this returns `i32::MAX` when every value is zero and otherwise divides by `max(m, 1)`
-/// computed over absolute values, so that [`encode_linear`] followed by [`decode_linear`]
-/// always succeeds.
+/// (all-zero or negative data, where the reference returns infinity or a negative number, or
+/// values above `i32::MAX`, where it returns 0), this takes `m` over absolute values and at
+/// least 1, and does not round a fixed point below 1 down to 0, so that [`encode_linear`]
+/// followed by [`decode_linear`] succeeds for all finite data.
 pub fn optimal_linear_fixed_point(data: &[f64]) -> f64 {
-    match data {
-        [] => 0.0,
-        [x] => {
-            let fp = (INT_MAX / x).floor();
-            if fp.is_finite() && fp > 0.0 { fp } else { (INT_MAX / x.abs().max(1.0)).floor() }
-        }
-        _ => {
-            let mut max = data[0].max(data[1]);
-            for w in data.windows(3) {
-                let extrapolated = w[1] + (w[1] - w[0]);
-                let residual = w[2] - extrapolated;
-                max = max.max((residual.abs() + 1.0).ceil());
-            }
-            let fp = (INT_MAX / max).floor();
-            if fp.is_finite() && fp > 0.0 {
-                fp
-            } else {
-                let mut max = data[0].abs().max(data[1].abs()).max(1.0);
-                for w in data.windows(3) {
-                    let residual = w[2] - (w[1] + (w[1] - w[0]));
-                    max = max.max((residual.abs() + 1.0).ceil());
-                }
-                (INT_MAX / max).floor()
-            }
-        }
+    let residuals = || {
+        data.windows(3).map(|w| {
+            let extrapolated = w[1] + (w[1] - w[0]);
+            ((w[2] - extrapolated).abs() + 1.0).ceil()
+        })
+    };
+    let reference = match data {
+        [] => return 0.0,
+        [x] => (INT_MAX / x).floor(),
+        _ => (INT_MAX / residuals().fold(data[0].max(data[1]), f64::max)).floor(),
+    };
+    if reference.is_finite() && reference > 0.0 {
+        return reference;
     }
+    let first_two = data.iter().take(2).fold(1.0f64, |m, x| m.max(x.abs()));
+    let fp = INT_MAX / residuals().fold(first_two, f64::max);
+    if fp >= 1.0 { fp.floor() } else { fp }
 }
 
 /// Decodes linear-prediction bytes, appending to `out`.
@@ -501,12 +492,15 @@ mod tests {
 
     #[test]
     fn degenerate_linear_data_still_round_trips() {
-        for data in [&[0.0][..], &[0.0, 0.0, 0.0], &[5.0, 5.0]] {
+        for data in [&[0.0][..], &[0.0, 0.0, 0.0], &[5.0, 5.0], &[3.0e9], &[1.0e12, 1.0e12 + 8.0]] {
             let fp = optimal_linear_fixed_point(data);
             assert!(fp.is_finite() && fp > 0.0, "{data:?} -> {fp}");
             let mut out = Vec::new();
             decode_linear(&encode_linear(data, fp), &mut out).unwrap();
-            assert_eq!(out, data);
+            assert_eq!(out.len(), data.len());
+            for (a, b) in out.iter().zip(data) {
+                assert!((a - b).abs() <= 0.5 / fp + b * 1e-15, "{data:?}: {a} vs {b} at {fp}");
+            }
         }
     }
 
