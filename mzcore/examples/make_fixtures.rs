@@ -126,10 +126,7 @@ fn prefix_elements(s: String) -> String {
             }
         }
     }
-    out.replace(
-        "xmlns=\"http://psi.hupo.org/ms/mzml\"",
-        "xmlns:ms=\"http://psi.hupo.org/ms/mzml\"",
-    )
+    out.replace("xmlns=\"http://psi.hupo.org/ms/mzml\"", "xmlns:ms=\"http://psi.hupo.org/ms/mzml\"")
 }
 
 /// Adds a non-standard array after the intensity array of every spectrum.
@@ -149,19 +146,27 @@ fn array_lengths(s: String) -> String {
         };
         let start = at + "defaultArrayLength=\"".len();
         let len: String = part[start..].chars().take_while(char::is_ascii_digit).collect();
-        let part = part.replacen(&format!("defaultArrayLength=\"{len}\""), "defaultArrayLength=\"7\"", 1);
-        out.push_str(
-            &part.replace("<binaryDataArray encodedLength=", &format!("<binaryDataArray arrayLength=\"{len}\" encodedLength=")),
-        );
+        let part =
+            part.replacen(&format!("defaultArrayLength=\"{len}\""), "defaultArrayLength=\"7\"", 1);
+        out.push_str(&part.replace(
+            "<binaryDataArray encodedLength=",
+            &format!("<binaryDataArray arrayLength=\"{len}\" encodedLength="),
+        ));
     }
     out
 }
 
 /// Re-encodes as ISO-8859-1 with a Latin-1 character in the run id.
 fn latin1(dir: &Path, name: &str) {
-    let base = write(&dir.join(name), plain(WriterOptions { run_id: "run_Üfer".into(), ..Default::default() }));
-    let text = String::from_utf8(base).expect("utf-8").replace("encoding=\"utf-8\"", "encoding=\"ISO-8859-1\"");
-    let bytes: Vec<u8> = text.chars().map(|c| u8::try_from(c as u32).expect("Latin-1 text")).collect();
+    let base = write(
+        &dir.join(name),
+        plain(WriterOptions { run_id: "run_Üfer".into(), ..Default::default() }),
+    );
+    let text = String::from_utf8(base)
+        .expect("utf-8")
+        .replace("encoding=\"utf-8\"", "encoding=\"ISO-8859-1\"");
+    let bytes: Vec<u8> =
+        text.chars().map(|c| u8::try_from(c as u32).expect("Latin-1 text")).collect();
     std::fs::write(dir.join(name), bytes).expect("write fixture");
 }
 
@@ -179,21 +184,58 @@ fn main() {
     std::fs::write(dir.join("variant-indexed-zlib.mzML.gz"), gz.finish().expect("gzip"))
         .expect("write fixture");
     for (name, mz, it) in [
-        ("encoding-f32-none", enc(NumericType::F32, Compression::None), enc(NumericType::F32, Compression::None)),
-        ("encoding-f64-none", enc(NumericType::F64, Compression::None), enc(NumericType::F64, Compression::None)),
-        ("encoding-int-zlib", enc(NumericType::F64, Compression::Zlib), enc(NumericType::I32, Compression::Zlib)),
-        ("encoding-int64-none", enc(NumericType::F64, Compression::None), enc(NumericType::I64, Compression::None)),
-        ("encoding-numpress-linear-pic", enc(NumericType::F64, Compression::NumpressLinear), enc(NumericType::F64, Compression::NumpressPic)),
-        ("encoding-numpress-linear-slof", enc(NumericType::F64, Compression::NumpressLinear), enc(NumericType::F64, Compression::NumpressSlof)),
-        ("encoding-numpress-zlib", enc(NumericType::F64, Compression::NumpressLinearZlib), enc(NumericType::F64, Compression::NumpressPicZlib)),
-        ("encoding-numpress-slof-zlib", enc(NumericType::F64, Compression::NumpressLinearZlib), enc(NumericType::F64, Compression::NumpressSlofZlib)),
+        (
+            "encoding-f32-none",
+            enc(NumericType::F32, Compression::None),
+            enc(NumericType::F32, Compression::None),
+        ),
+        (
+            "encoding-f64-none",
+            enc(NumericType::F64, Compression::None),
+            enc(NumericType::F64, Compression::None),
+        ),
+        (
+            "encoding-int-zlib",
+            enc(NumericType::F64, Compression::Zlib),
+            enc(NumericType::I32, Compression::Zlib),
+        ),
+        (
+            "encoding-int64-none",
+            enc(NumericType::F64, Compression::None),
+            enc(NumericType::I64, Compression::None),
+        ),
+        (
+            "encoding-numpress-linear-pic",
+            enc(NumericType::F64, Compression::NumpressLinear),
+            enc(NumericType::F64, Compression::NumpressPic),
+        ),
+        (
+            "encoding-numpress-linear-slof",
+            enc(NumericType::F64, Compression::NumpressLinear),
+            enc(NumericType::F64, Compression::NumpressSlof),
+        ),
+        (
+            "encoding-numpress-zlib",
+            enc(NumericType::F64, Compression::NumpressLinearZlib),
+            enc(NumericType::F64, Compression::NumpressPicZlib),
+        ),
+        (
+            "encoding-numpress-slof-zlib",
+            enc(NumericType::F64, Compression::NumpressLinearZlib),
+            enc(NumericType::F64, Compression::NumpressSlofZlib),
+        ),
     ] {
         let o = WriterOptions { mz_encoding: mz, intensity_encoding: it, ..default.clone() };
         write(&dir.join(format!("{name}.mzML")), o);
     }
     write(
         &dir.join("variant-param-groups-seconds-ei.mzML"),
-        WriterOptions { param_groups: true, rt_in_seconds: true, ionization: Ionization::Electron, ..default.clone() },
+        WriterOptions {
+            param_groups: true,
+            rt_in_seconds: true,
+            ionization: Ionization::Electron,
+            ..default.clone()
+        },
     );
     edit(&dir, "variant-crlf.mzML", |s| s.replace('\n', "\r\n"));
     edit(&dir, "variant-wrapped-base64.mzML", wrap_binary);

@@ -330,7 +330,7 @@ impl<R: BufRead> Reader<R> {
             let event = match self.xml.read_event_into(&mut self.buf) {
                 Ok(ev) => ev,
                 Err(e) => {
-                    let at = self.base + self.xml.error_position();
+                    let at = self.base + error_offset(&self.xml, &e);
                     return Err(self.fatal_xml(e, at));
                 }
             };
@@ -437,7 +437,19 @@ impl<R: BufRead> Reader<R> {
         };
         match r {
             Ok(()) => None,
-            Err(err) => Some(Err(err)),
+            Err(err) => {
+                // Outside a spectrum, a cut, an I/O failure or broken XML ends the document.
+                if matches!(
+                    err.kind(),
+                    ErrorKind::Truncated { .. }
+                        | ErrorKind::Io(_)
+                        | ErrorKind::LimitExceeded { .. }
+                        | ErrorKind::Xml(_)
+                ) {
+                    self.state = State::Finished;
+                }
+                Some(Err(err))
+            }
         }
     }
 
@@ -801,7 +813,19 @@ fn next_event<'b, R: BufRead>(
     xml.get_mut().start_event();
     match xml.read_event_into(buf) {
         Ok(ev) => Ok(ev),
-        Err(e) => Err(xml_error(e, base + xml.error_position(), limit, complete)),
+        Err(e) => {
+            let at = base + error_offset(xml, &e);
+            Err(xml_error(e, at, limit, complete))
+        }
+    }
+}
+
+/// Where a tokenizer error happened: the start of the bad markup for syntax errors, the
+/// current position for I/O errors (the tokenizer does not track those).
+pub(crate) fn error_offset<R>(xml: &quick_xml::Reader<R>, e: &quick_xml::Error) -> u64 {
+    match e {
+        quick_xml::Error::Io(_) => xml.buffer_position(),
+        _ => xml.error_position(),
     }
 }
 

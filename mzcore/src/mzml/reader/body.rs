@@ -56,6 +56,24 @@ impl Tag {
     }
 }
 
+/// The first bytes of an element's local name, kept on the stack to check nesting without
+/// allocating.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+struct ShortName([u8; 32], usize);
+
+impl ShortName {
+    fn of(name: &[u8]) -> Self {
+        let mut b = [0u8; 32];
+        let n = name.len().min(32);
+        b[..n].copy_from_slice(&name[..n]);
+        ShortName(b, n)
+    }
+}
+
+fn xml_err(msg: String) -> Error {
+    Error::new(ErrorKind::Xml(msg))
+}
+
 /// What is being gathered for the binary array currently open.
 #[derive(Default)]
 struct ArrayState {
@@ -84,7 +102,7 @@ pub(crate) struct ChromFacts {
 struct Body<'h> {
     header: &'h Header,
     limits: BodyLimits,
-    stack: Vec<Tag>,
+    stack: Vec<(Tag, ShortName)>,
     first_error: Option<Error>,
     array: Option<ArrayState>,
     used_arrays: usize,
@@ -226,13 +244,17 @@ impl Body<'_> {
             xml.get_mut().start_event();
             let event = match xml.read_event_into(buf) {
                 Ok(ev) => ev,
-                Err(e) => return Err(BodyError::Xml(e, self.limits.base + xml.error_position())),
+                Err(e) => {
+                    let at = self.limits.base + super::error_offset(xml, &e);
+                    return Err(BodyError::Xml(e, at));
+                }
             };
             match event {
                 Event::Start(e) => {
-                    let tag = Tag::of(e.local_name().as_ref());
+                    let local = e.local_name();
+                    let tag = Tag::of(local.as_ref());
                     self.open(&e, tag, pos, out);
-                    self.stack.push(tag);
+                    self.stack.push((tag, ShortName::of(local.as_ref())));
                     if self.stack.len() > self.limits.max_depth {
                         self.note(
                             Error::new(ErrorKind::LimitExceeded {
@@ -261,34 +283,37 @@ impl Body<'_> {
                         }
                     }
                 }
-                Event::Text(t) if self.stack.last() == Some(&Tag::Binary) => {
+                Event::Text(t) if self.stack.last().map(|t| t.0) == Some(Tag::Binary) => {
                     self.binary_text(&t, out);
                 }
                 Event::End(e) => {
                     let local = e.local_name();
-                    let closes_element = matches!(local.as_ref(), b"spectrum" | b"chromatogram");
-                    if closes_element && self.stack.is_empty() {
+                    let name = local.as_ref();
+                    if matches!(name, b"spectrum" | b"chromatogram") {
+                        if let Some(&(_, open)) = self.stack.last() {
+                            let open = String::from_utf8_lossy(&open.0[..open.1]).into_owned();
+                            self.note(xml_err(format!("element <{open}> is not closed")), pos);
+                        }
                         return Ok(());
                     }
-                    let tag = Tag::of(local.as_ref());
+                    let tag = Tag::of(name);
                     match self.stack.pop() {
-                        Some(top) if top == tag => self.close(tag, pos, out),
-                        Some(_) | None => {
-                            let name = String::from_utf8_lossy(local.as_ref()).into_owned();
+                        Some((top, n)) if top == tag && n == ShortName::of(name) => {
+                            self.close(tag, pos, out)
+                        }
+                        _ => {
+                            let name = String::from_utf8_lossy(name).into_owned();
                             self.note(
-                                Error::new(ErrorKind::Xml(format!(
+                                xml_err(format!(
                                     "unexpected end tag </{name}> (elements not properly nested)"
-                                ))),
+                                )),
                                 pos,
                             );
-                            if closes_element {
-                                return Ok(());
-                            }
-                            // Elements above the spectrum ended: resynchronise by giving up
-                            // on this element; the caller sees the error and goes on.
+                            // Elements above the spectrum ended: give up on this element; the
+                            // caller sees the error and goes on.
                             if matches!(
-                                local.as_ref(),
-                                b"spectrumList" | b"chromatogramList" | b"run" | b"mzML"
+                                name.as_str(),
+                                "spectrumList" | "chromatogramList" | "run" | "mzML"
                             ) {
                                 return Ok(());
                             }
@@ -473,10 +498,10 @@ impl Body<'_> {
 
     /// Applies one cvParam to whatever element is innermost.
     fn apply(&mut self, p: &CvParam<'_>, pos: u64, out: &mut Spectrum) {
-        let r = match self.stack.last().copied() {
+        let r = match self.stack.last().map(|t| t.0) {
             None => self.apply_top(p, out),
             Some(Tag::Scan) if self.scans_seen == 1 => self.apply_scan(p, out),
-            Some(Tag::IsolationWindow) if !self.stack.contains(&Tag::Product) => {
+            Some(Tag::IsolationWindow) if !self.stack.iter().any(|t| t.0 == Tag::Product) => {
                 apply_isolation(p, out.meta.precursors.last_mut())
             }
             Some(Tag::SelectedIon) => apply_selected_ion(p, out.meta.precursors.last_mut()),
