@@ -390,7 +390,7 @@ fn reader_stops_after_a_fatal_error() {
     let doc = document(false);
     let mut r = Reader::new(&doc.as_bytes()[..doc.len() / 2]).unwrap();
     let mut errors = 0;
-    while let Some(item) = r.next() {
+    for item in r.by_ref() {
         errors += usize::from(item.is_err());
     }
     assert_eq!(errors, 1);
