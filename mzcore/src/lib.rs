@@ -1,4 +1,35 @@
 //! `mzcore`: the library behind `mzsift`.
+//!
+//! Data flows through these types:
+//!
+//! - [`mzml::Reader`] streams a document (plain or gzip, any `BufRead`) and hands out
+//!   [`spectrum::Spectrum`]s: metadata plus arrays still encoded as base64 text, so that the
+//!   expensive part, [`spectrum::Spectrum::decode`], can run on worker threads;
+//! - [`spectrum::Peaks`] are the decoded m/z and intensity arrays;
+//! - [`mzml::IndexedReader`] reads single spectra of indexed files at random;
+//! - [`mzml::Writer`] writes indexed or plain mzML with any supported encoding;
+//! - [`Error`] carries an [`ErrorKind`] and a [`Position`] (byte offset, spectrum index and id).
+//!
+//! # Example
+//!
+//! ```
+//! use mzcore::mzml::{Reader, Writer, WriterOptions};
+//! use mzcore::spectrum::{Peaks, SpectrumMeta};
+//!
+//! let mut w = Writer::new(Vec::new(), WriterOptions { spectrum_count: 2, ..Default::default() })?;
+//! for (i, mz) in [[120.0, 121.0], [240.0, 242.0]].into_iter().enumerate() {
+//!     let meta = SpectrumMeta { id: format!("scan={}", i + 1), ms_level: 1, ..Default::default() };
+//!     w.write_spectrum(&meta, &Peaks { mz: mz.to_vec(), intensity: vec![3.0, 1.0] })?;
+//! }
+//! let doc = w.finish()?;
+//!
+//! let mut total_points = 0;
+//! for spectrum in Reader::new(&doc[..])? {
+//!     total_points += spectrum?.decode()?.len();
+//! }
+//! assert_eq!(total_points, 4);
+//! # Ok::<_, mzcore::Error>(())
+//! ```
 
 pub mod error;
 pub mod mzml;

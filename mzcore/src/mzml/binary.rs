@@ -361,6 +361,6 @@ mod tests {
             assert_eq!(Compression::from_accession(c.cv().0), Some(c));
         }
         assert_eq!(NumericType::from_accession("MS:1000519"), Some(NumericType::I32));
-        assert_eq!(Compression::from_accession("MS:9999999"), None);
+        assert_eq!(Compression::from_accession("MS:9999999"), None); // not-a-term
     }
 }

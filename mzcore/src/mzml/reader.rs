@@ -116,7 +116,7 @@ enum State {
 ///
 /// // Write a one-spectrum document in memory, then read it back.
 /// let mut doc = Vec::new();
-/// let mut w = Writer::new(&mut doc, WriterOptions::default())?;
+/// let mut w = Writer::new(&mut doc, WriterOptions::default())?; // one spectrum by default
 /// let meta = SpectrumMeta { id: "scan=1".into(), ms_level: 1, ..Default::default() };
 /// w.write_spectrum(&meta, &Peaks { mz: vec![100.0, 101.0], intensity: vec![5.0, 7.0] })?;
 /// w.finish()?;
