@@ -208,4 +208,21 @@ proptest! {
             ),
         }
     }
+
+    #[test]
+    fn base64_acceptance_is_the_base64_crates(
+        text in prop::collection::vec(prop::sample::select(b"AQgw/+=-_ \n".to_vec()), 0..24)
+    ) {
+        // The reader switched to base64-simd; RFC 4648 strictness (canonical padding, zero
+        // trailing bits, no whitespace) must stay what the base64 crate enforces.
+        use base64::Engine;
+        let reference = base64::engine::general_purpose::STANDARD.decode(&text);
+        let (mut scratch, mut out) = (Vec::new(), Vec::new());
+        let ours = mzcore::mzml::binary::bare_decode(&text, false, &mut scratch, &mut out);
+        match (ours, reference) {
+            (Ok(n), Ok(bytes)) => prop_assert_eq!(&out[..n], &bytes[..]),
+            (Err(e), Err(r)) => prop_assert_eq!(e.to_string(), format!("invalid base64: {}", r)),
+            (a, b) => prop_assert!(false, "{:?}: ours {:?}, base64 crate {:?}", text, a.map(|_| ()), b),
+        }
+    }
 }
