@@ -1,5 +1,6 @@
 //! `mzcore`: the library behind `mzsift`.
 
+pub mod chem;
 pub mod error;
 pub mod mzml;
 pub mod spectrum;
