@@ -1,0 +1,4 @@
+//! Subcommands.
+
+pub mod mass;
+pub mod pattern;
