@@ -185,7 +185,7 @@ impl IonType {
         self.charge
     }
 
-    /// True for odd-electron ions written with `.` (M+., [M]-.).
+    /// True for odd-electron ions written with `.` (`M+.`, `[M]-.`).
     pub fn is_radical(&self) -> bool {
         self.radical
     }
