@@ -14,7 +14,8 @@ use mzcore::chem::{Formula, IonType};
     isotopologues). Without --resolution or --shells every isotopologue is listed, labelled by \
     its shell and heavy isotopes (e.g. 'M+2 37Cl').")]
 pub struct PatternArgs {
-    /// Formula, e.g. C6H4(NO2)2 or [13C]6H12O6.
+    /// Formula, e.g. `C6H4(NO2)2` or `[13C]6H12O6`.
+    #[arg(help = "Formula, e.g. C6H4(NO2)2 or [13C]6H12O6")]
     pub formula: String,
     /// Ion type: [M+H]+, M+H, M-H, M+Na, M+NH4, M+Cl, M+HCOO, M+2H, M+., ...
     #[arg(long)]
