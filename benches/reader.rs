@@ -41,8 +41,9 @@ fn bare_work(path: &std::path::Path) -> usize {
         while let Some(a) = open.find(&pending[start..]) {
             let text_at = start + a + 8;
             let Some(b) = close.find(&pending[text_at..]) else { break };
-            total += binary::bare_decode(&pending[text_at..text_at + b], true, &mut scratch, &mut out)
-                .unwrap();
+            total +=
+                binary::bare_decode(&pending[text_at..text_at + b], true, &mut scratch, &mut out)
+                    .unwrap();
             start = text_at + b + 9;
         }
         pending.drain(..start);

@@ -29,7 +29,8 @@ fn spectrum(rng: &mut Lcg, peaks: &mut Peaks) {
     let mut mz = 100.0;
     for i in 0..POINTS {
         mz += 0.04 + 0.002 * rng.next();
-        let peak = if i % 400 < 8 { 1e5 * (1.0 - ((i % 400) as f64 - 4.0).abs() / 4.0) } else { 0.0 };
+        let peak =
+            if i % 400 < 8 { 1e5 * (1.0 - ((i % 400) as f64 - 4.0).abs() / 4.0) } else { 0.0 };
         peaks.mz.push(mz);
         peaks.intensity.push((200.0 + 50.0 * rng.next() + peak).round());
     }

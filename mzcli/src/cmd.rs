@@ -2,6 +2,8 @@
 
 pub mod info;
 pub mod list;
+pub mod mass;
+pub mod pattern;
 
 use std::io::BufRead;
 use std::path::Path;

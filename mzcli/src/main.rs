@@ -31,6 +31,14 @@ enum Command {
         after_help = "Examples:\n  mzsift info fixtures/variant-zlib-f64.mzML\n  mzsift info --verify --format json run.mzML"
     )]
     Info(cmd::info::InfoArgs),
+    /// Isotope pattern of a formula as TSV (shells, fine structure, or at a resolving power).
+    #[command(
+        after_help = "Examples:\n  mzsift pattern C12H7Cl3O2 --ion M+.\n  mzsift pattern C6Cl6 --shells\n  mzsift pattern C10H5Cl5 --ion M-H --resolution 60000"
+    )]
+    Pattern(cmd::pattern::PatternArgs),
+    /// Monoisotopic, nominal and average mass, ion m/z and nitrogen-rule parity of a formula.
+    #[command(after_help = "Examples:\n  mzsift mass C8H10N4O2 --ion M+H\n  mzsift mass C12Br10O")]
+    Mass(cmd::mass::MassArgs),
 }
 
 fn main() -> ExitCode {
@@ -46,6 +54,8 @@ fn main() -> ExitCode {
     let result = match &cli.command {
         Command::List(a) => cmd::list::run(a, &mut out),
         Command::Info(a) => cmd::info::run(a, &mut out),
+        Command::Pattern(a) => output::input_error_is_usage(cmd::pattern::run(a, &mut out)),
+        Command::Mass(a) => output::input_error_is_usage(cmd::mass::run(a, &mut out)),
     };
     let flushed = std::io::Write::flush(&mut out).map_err(anyhow::Error::from);
     output::finish(result.and_then(|code| flushed.map(|_| code)))

@@ -35,3 +35,16 @@ pub fn finish(result: anyhow::Result<u8>) -> ExitCode {
         }
     }
 }
+
+/// For commands whose only input is their arguments (a formula, an ion type): an input error
+/// is a usage error (exit code 2), printed here; other errors pass through.
+pub fn input_error_is_usage(result: anyhow::Result<()>) -> anyhow::Result<u8> {
+    match result {
+        Ok(()) => Ok(OK),
+        Err(e) if e.chain().any(|c| c.downcast_ref::<mzcore::Error>().is_some()) => {
+            eprintln!("mzsift: {e:#}");
+            Ok(USAGE)
+        }
+        Err(e) => Err(e),
+    }
+}

@@ -2,6 +2,8 @@
 //!
 //! `cargo run --release -p mzcore --example bench_file -- OUT.mzML MEGABYTES`
 
+// `cached` serves the benchmark only.
+#[allow(dead_code)]
 #[path = "../../benches/support/bigfile.rs"]
 mod bigfile;
 

@@ -2,5 +2,6 @@
 
 mod util;
 
+mod chem;
 mod info;
 mod list;
