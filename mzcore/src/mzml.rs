@@ -15,4 +15,4 @@ mod writer;
 
 pub use indexed::IndexedReader;
 pub use reader::{ChecksumStatus, INTERPRETED_TERMS, Reader, ReaderOptions};
-pub use writer::{Writer, WriterOptions};
+pub use writer::{EncodedPeaks, Writer, WriterOptions};

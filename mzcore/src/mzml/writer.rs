@@ -118,6 +118,11 @@ fn ionization_term(ion: Ionization) -> Option<Term> {
 }
 
 impl<W: Write> Writer<W> {
+    /// The options in force.
+    pub fn options(&self) -> &WriterOptions {
+        &self.options
+    }
+
     /// Starts a document: writes everything up to the first spectrum.
     pub fn new(out: W, options: WriterOptions) -> Result<Self> {
         let mut w = Writer {
@@ -204,13 +209,17 @@ impl<W: Write> Writer<W> {
     /// Writes one spectrum. `meta.index` is ignored: spectra are numbered in write order.
     /// Stored TIC and base peak are written when set in `meta`, else computed from `peaks`.
     pub fn write_spectrum(&mut self, meta: &SpectrumMeta, peaks: &Peaks) -> Result<()> {
-        if peaks.mz.len() != peaks.intensity.len() {
-            return Err(Error::new(ErrorKind::LengthMismatch {
-                what: "intensity vs m/z array".into(),
-                declared: peaks.mz.len(),
-                found: peaks.intensity.len(),
-            }));
-        }
+        let encoded = EncodedPeaks::encode(peaks, &self.options)?;
+        self.write_spectrum_with(meta, &encoded)
+    }
+
+    /// Writes one spectrum whose arrays were encoded beforehand with [`EncodedPeaks::encode`]
+    /// and this writer's options (so that encoding can run on other threads).
+    pub fn write_spectrum_with(
+        &mut self,
+        meta: &SpectrumMeta,
+        encoded: &EncodedPeaks,
+    ) -> Result<()> {
         let index = self.offsets.len();
         let ind = self.indent();
         let i1 = format!("{ind}  ");
@@ -221,7 +230,7 @@ impl<W: Write> Writer<W> {
         t.push_str(&format!(
             "{ind}<spectrum index=\"{index}\" id=\"{}\" defaultArrayLength=\"{}\">\n",
             escape(&meta.id),
-            peaks.len()
+            encoded.points
         ));
         cv_param(&mut t, &i1, cv::MS_LEVEL, Some(&meta.ms_level.to_string()));
         cv_param(
@@ -240,10 +249,10 @@ impl<W: Write> Writer<W> {
             Polarity::Negative => cv_param(&mut t, &i1, cv::NEGATIVE_SCAN, None),
             Polarity::Unknown => {}
         }
-        let tic = meta.stored_tic.unwrap_or_else(|| peaks.intensity.iter().sum());
+        let tic = meta.stored_tic.unwrap_or(encoded.tic);
         let (bp_mz, bp_int) = match (meta.stored_base_peak_mz, meta.stored_base_peak_intensity) {
             (Some(m), Some(i)) => (Some(m), Some(i)),
-            _ => base_peak(peaks),
+            _ => (encoded.base_peak.map(|b| b.0), encoded.base_peak.map(|b| b.1)),
         };
         cv_param(&mut t, &i1, cv::TOTAL_ION_CURRENT, Some(&fmt_f64(tic)));
         if let (Some(m), Some(i)) = (bp_mz, bp_int) {
@@ -295,16 +304,15 @@ impl<W: Write> Writer<W> {
         }
         t.push_str(&format!("{i1}<binaryDataArrayList count=\"2\">\n"));
         let groups = self.options.param_groups;
-        for (values, enc, kind, group) in [
-            (&peaks.mz, self.options.mz_encoding, cv::MZ_ARRAY, "mz_params"),
+        for (text, enc, kind, group) in [
+            (&encoded.mz, self.options.mz_encoding, cv::MZ_ARRAY, "mz_params"),
             (
-                &peaks.intensity,
+                &encoded.intensity,
                 self.options.intensity_encoding,
                 cv::INTENSITY_ARRAY,
                 "intensity_params",
             ),
         ] {
-            let text = binary::encode(values, enc);
             t.push_str(&format!("{i2}<binaryDataArray encodedLength=\"{}\">\n", text.len()));
             if groups {
                 t.push_str(&format!("{i3}<referenceableParamGroupRef ref=\"{group}\"/>\n"));
@@ -396,6 +404,38 @@ impl<W: Write> Writer<W> {
         }
         self.sink.out.flush()?;
         Ok(self.sink.out)
+    }
+}
+
+/// A spectrum's arrays encoded as base64 text, plus what the writer derives from the values
+/// (point count, TIC, base peak). Built on any thread, written by [`Writer::write_spectrum_with`].
+#[derive(Debug, Clone, Default)]
+pub struct EncodedPeaks {
+    mz: String,
+    intensity: String,
+    points: usize,
+    tic: f64,
+    base_peak: Option<(f64, f64)>,
+}
+
+impl EncodedPeaks {
+    /// Encodes `peaks` with the encodings of `options`.
+    pub fn encode(peaks: &Peaks, options: &WriterOptions) -> Result<Self> {
+        if peaks.mz.len() != peaks.intensity.len() {
+            return Err(Error::new(ErrorKind::LengthMismatch {
+                what: "intensity vs m/z array".into(),
+                declared: peaks.mz.len(),
+                found: peaks.intensity.len(),
+            }));
+        }
+        let (bp_mz, bp_int) = base_peak(peaks);
+        Ok(EncodedPeaks {
+            mz: binary::encode(&peaks.mz, options.mz_encoding),
+            intensity: binary::encode(&peaks.intensity, options.intensity_encoding),
+            points: peaks.len(),
+            tic: peaks.intensity.iter().sum(),
+            base_peak: bp_mz.zip(bp_int),
+        })
     }
 }
 
