@@ -48,6 +48,8 @@ pub fn write(path: &Path, megabytes: u64) -> std::io::Result<u64> {
             numeric: NumericType::F32,
             compression: Compression::Zlib,
         },
+        // Every <binary> of the file is then a zlib array, as the bare-work baseline assumes.
+        tic_chromatogram: false,
         ..WriterOptions::default()
     };
     let file = BufWriter::with_capacity(1 << 20, std::fs::File::create(path)?);
