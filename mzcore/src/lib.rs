@@ -1,5 +1,6 @@
 //! `mzcore`: the library behind `mzsift`.
 
+pub mod centroid;
 pub mod error;
 pub mod mzml;
 pub mod spectrum;
