@@ -100,7 +100,7 @@ pub struct CentroidParams {
     /// Two maxima on one island stay separate peaks only if the valley between them is at
     /// least this fraction of the smaller one's height above baseline. Default 0.1.
     pub min_valley_depth: f64,
-    /// ... and at least this many noise sigmas deep. Default 3.
+    /// ... and at least this many noise sigmas deep. Default 5.
     pub min_valley_snr: f64,
     /// A one-point maximum is a noise spike unless its higher neighbour reaches this fraction
     /// of its height above baseline. Default 0.25.
@@ -117,7 +117,7 @@ impl Default for CentroidParams {
             noise: NoiseMethod::Global,
             apex: ApexMethod::GaussianFit,
             min_valley_depth: 0.1,
-            min_valley_snr: 3.0,
+            min_valley_snr: 5.0,
             spike_ratio: 0.25,
             gap_factor: 1.6,
         }

@@ -54,6 +54,7 @@ impl Spectrum<'_> {
     }
 
     /// True when points `k` and `k + 1` are on one island (both finite, spacing not a gap).
+    #[inline]
     fn linked(&self, k: usize) -> bool {
         if !(self.y[k].is_finite() && self.y[k + 1].is_finite()) {
             return false;
@@ -175,16 +176,21 @@ fn try_merge(
     hill: Group,
     params: &CentroidParams,
 ) -> Result<Group, ()> {
-    let between = s.y[g.last + 1..hill.first].iter().copied().fold(f64::INFINITY, f64::min);
-    let valley = g.min_after_apex.min(between);
     let lower = g.height.min(hill.height);
-    let depth = lower - valley;
     let noise = g.noise;
-    let deep = depth >= params.min_valley_depth * (lower - noise.baseline)
-        && depth >= params.min_valley_snr * noise.sigma;
-    if deep || !s.connected(g.last, hill.first) {
+    // The valley is deep enough to separate when it reaches down to `level`.
+    let need = (params.min_valley_depth * (lower - noise.baseline))
+        .max(params.min_valley_snr * noise.sigma);
+    let level = lower - need;
+    let between = &s.y[g.last + 1..hill.first];
+    // Early exit: on a baseline stretch a deep point comes within a few points.
+    if g.min_after_apex <= level || between.iter().any(|&v| v <= level) {
         return Err(());
     }
+    if !s.connected(g.last, hill.first) {
+        return Err(());
+    }
+    let valley = between.iter().copied().fold(g.min_after_apex, f64::min);
     let mut m = g;
     m.last = hill.last;
     if hill.height > g.height {
@@ -221,11 +227,11 @@ fn finish(s: &Spectrum<'_>, g: &Group, params: &CentroidParams, out: &mut Vec<Ce
     }
     // Extent: walk downhill from the outermost maxima to the valleys or the island edges.
     let mut lo = g.first;
-    while lo > 0 && s.linked(lo - 1) && y[lo - 1] <= y[lo] {
+    while lo > 0 && y[lo - 1] <= y[lo] && s.linked(lo - 1) {
         lo -= 1;
     }
     let mut hi = g.last;
-    while hi + 1 < n && s.linked(hi) && y[hi + 1] <= y[hi] {
+    while hi + 1 < n && y[hi + 1] <= y[hi] && s.linked(hi) {
         hi += 1;
     }
     // Points above half the apex point's height, around the apex.
@@ -250,12 +256,16 @@ fn finish(s: &Spectrum<'_>, g: &Group, params: &CentroidParams, out: &mut Vec<Ce
                 [mz[a - 1], mz[a], mz[a + 1]],
                 [y[a - 1] - base, y[a] - base, y[a + 1] - base],
             )
+            .filter(|f| f.mu >= mz[a - 1] && f.mu <= mz[a + 1])
         };
         fit = match params.apex {
             ApexMethod::Gaussian3 => three(),
             ApexMethod::GaussianFit => {
                 if hr - hl + 1 >= 3 {
-                    lsq(mz, y, hl, hr, a, base).or_else(three)
+                    // A noisy top can bend the fit away; keep it only inside the fitted points.
+                    lsq(mz, y, hl, hr, a, base)
+                        .filter(|f| f.mu >= mz[hl] && f.mu <= mz[hr])
+                        .or_else(three)
                 } else {
                     three()
                 }

@@ -1,0 +1,2 @@
+//! Tests of `mzcore::centroid` on synthetic and reference spectra.
+mod profiles;
