@@ -9,7 +9,8 @@
 //!
 //! Profile data from real instruments is sampled non-uniformly and often has runs of zero
 //! points removed. Two neighbouring points are on the same *island* when their spacing is
-//! not much larger than the spacing next to it (see [`CentroidParams::gap_factor`]); a peak never
+//! not much larger than the spacings next to it and than the typical spacing in that part of
+//! the spectrum (see [`CentroidParams::gap_factor`]); a peak never
 //! extends across a gap, and an island of two or three points can be a peak.
 //!
 //! [`Centroider`] holds the scratch buffers so that a worker thread can centroid spectrum after
@@ -105,8 +106,9 @@ pub struct CentroidParams {
     /// A one-point maximum is a noise spike unless its higher neighbour reaches this fraction
     /// of its height above baseline. Default 0.25.
     pub spike_ratio: f64,
-    /// A spacing larger than this factor times the smaller neighbouring spacing is a gap (a
-    /// dropped run of points). Default 1.6.
+    /// A spacing larger than this factor times the smaller neighbouring spacing, or than twice
+    /// this factor times the typical spacing in that part of the spectrum, is a gap (a dropped
+    /// run of points). Default 1.6.
     pub gap_factor: f64,
 }
 
@@ -182,6 +184,7 @@ pub struct Centroider {
     samples: Vec<f64>,
     noise: Vec<NoiseLevel>,
     block_len: usize,
+    spacing: pick::SpacingModel,
 }
 
 impl Centroider {
@@ -250,8 +253,8 @@ impl Centroider {
         }
         let (mz, intensity) = (&mz[..n], &intensity[..n]);
         self.estimate(intensity, params.noise);
-        let spacing = pick::SpacingModel::estimate(mz, &mut self.samples);
-        pick::pick(mz, intensity, &self.noise, self.block_len, &spacing, params, out);
+        self.spacing.estimate(mz, &mut self.samples);
+        pick::pick(mz, intensity, &self.noise, self.block_len, &self.spacing, params, out);
     }
 
     /// Applies the same noise estimate and S/N threshold to an already centroided spectrum,

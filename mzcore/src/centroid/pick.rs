@@ -4,38 +4,58 @@ use super::apex::{self, GaussFit};
 use super::noise::{NoiseLevel, quantile_in_place};
 use super::{ApexMethod, Centroid, CentroidParams};
 
-/// Spacings sampled for the global spacing model.
-const SPACING_SAMPLES: usize = 512;
+/// Points per bin of the spacing model (at least; at most 32 bins).
+const MIN_BIN: usize = 64;
+/// Spacings sampled per bin.
+const BIN_SAMPLES: usize = 32;
 
-/// A spacing larger than this many times the spectrum's typical relative spacing (times m/z)
-/// is a gap even when its neighbours are as large (runs of one-point islands). Generous, so
-/// that spacing growing with m/z (up to m^2 in FT-ICR) over a wide range is not cut.
-const GLOBAL_GAP_FACTOR: f64 = 16.0;
-
-/// Typical sampling of a spectrum: the lower quartile of spacing / m/z.
-#[derive(Debug, Clone, Copy)]
+/// Typical sampling of a spectrum, bin by bin (consecutive runs of points): the lower quartile
+/// of spacing / m/z in the bin, then the smallest of each bin and its two neighbours. Gaps are
+/// rare enough in any three bins that the lower quartile is a normal sampling step.
+#[derive(Debug, Clone, Default)]
 pub(crate) struct SpacingModel {
-    relative: f64,
+    bin_len: usize,
+    relative: Vec<f64>,
 }
 
 impl SpacingModel {
-    pub(crate) fn estimate(mz: &[f64], scratch: &mut Vec<f64>) -> Self {
-        scratch.clear();
+    pub(crate) fn estimate(&mut self, mz: &[f64], scratch: &mut Vec<f64>) {
         let n = mz.len();
-        if n >= 2 {
-            let stride = (n - 1).div_ceil(SPACING_SAMPLES).max(1);
-            let mut k = 0;
-            while k + 1 < n {
+        self.relative.clear();
+        self.bin_len = MIN_BIN.max(n.div_ceil(32));
+        let mut start = 0;
+        while start + 1 < n {
+            let end = (start + self.bin_len).min(n - 1);
+            scratch.clear();
+            let stride = (end - start).div_ceil(BIN_SAMPLES).max(1);
+            let mut k = start;
+            while k < end {
                 let r = (mz[k + 1] - mz[k]) / mz[k].abs();
                 if r.is_finite() && r > 0.0 {
                     scratch.push(r);
                 }
                 k += stride;
             }
+            let q =
+                if scratch.is_empty() { f64::INFINITY } else { quantile_in_place(scratch, 0.25) };
+            self.relative.push(q);
+            start = end;
         }
-        let relative =
-            if scratch.is_empty() { f64::INFINITY } else { quantile_in_place(scratch, 0.25) };
-        SpacingModel { relative }
+        // Smallest of each bin and its neighbours, in place.
+        let mut prev = f64::INFINITY;
+        for i in 0..self.relative.len() {
+            let cur = self.relative[i];
+            let next = self.relative.get(i + 1).copied().unwrap_or(f64::INFINITY);
+            self.relative[i] = prev.min(cur).min(next);
+            prev = cur;
+        }
+    }
+
+    /// Typical relative spacing around step `k` (infinite when unknown).
+    #[inline]
+    fn relative_at(&self, k: usize) -> f64 {
+        let b = (k / self.bin_len.max(1)).min(self.relative.len().saturating_sub(1));
+        self.relative.get(b).copied().unwrap_or(f64::INFINITY)
     }
 }
 
@@ -44,7 +64,7 @@ struct Spectrum<'a> {
     mz: &'a [f64],
     y: &'a [f64],
     gap_factor: f64,
-    spacing: SpacingModel,
+    spacing: &'a SpacingModel,
 }
 
 impl Spectrum<'_> {
@@ -79,7 +99,8 @@ impl Spectrum<'_> {
         if d > self.gap_factor * local {
             return false;
         }
-        !(d > GLOBAL_GAP_FACTOR * self.spacing.relative * self.mz[k].abs())
+        // Twice the local factor: leaves room for spacing that changes with m/z within a bin.
+        !(d > 2.0 * self.gap_factor * self.spacing.relative_at(k) * self.mz[k].abs())
     }
 
     /// True when every step in `lo..hi` is linked.
@@ -111,7 +132,7 @@ pub(crate) fn pick(
     out: &mut Vec<Centroid>,
 ) {
     let n = mz.len();
-    let s = Spectrum { mz, y, gap_factor: params.gap_factor, spacing: *spacing };
+    let s = Spectrum { mz, y, gap_factor: params.gap_factor, spacing };
     let block_len = block_len.max(1);
     let mut group: Option<Group> = None;
     let mut i = 0;
@@ -278,8 +299,12 @@ fn finish(s: &Spectrum<'_>, g: &Group, params: &CentroidParams, out: &mut Vec<Ce
             }
             _ => {
                 // Weighted centroid above half height (also the fallback of the fits).
-                let (l, r) = if hr > hl { (hl, hr) } else { (lo, hi) };
-                let m = weighted(mz, y, l, r, base).unwrap_or(mz[a]);
+                let m = if hr > hl {
+                    half_height_centroid(mz, y, [lo, hl, hr, hi], half_pt, base)
+                } else {
+                    None
+                };
+                let m = m.or_else(|| weighted(mz, y, lo, hi, base)).unwrap_or(mz[a]);
                 (m, h)
             }
         }
@@ -334,6 +359,31 @@ fn lsq(mz: &[f64], y: &[f64], l: usize, r: usize, a: usize, base: f64) -> Option
     }
     let scale = mz[r] - mz[l];
     apex::gaussian_lsq(&xs[..len], &ys[..len], mz[a], scale)
+}
+
+/// Intensity-weighted centroid of the linearly interpolated profile between its half-height
+/// crossings, so that where the samples fall does not bias it (`b = [lo, hl, hr, hi]`: the
+/// peak's extent and the run of points at or above `half`).
+fn half_height_centroid(mz: &[f64], y: &[f64], b: [usize; 4], half: f64, base: f64) -> Option<f64> {
+    let [lo, hl, hr, hi] = b;
+    let (mut area, mut moment) = (0.0, 0.0);
+    let mut seg = |x0: f64, w0: f64, x1: f64, w1: f64| {
+        let dx = x1 - x0;
+        area += 0.5 * (w0 + w1) * dx;
+        moment += dx * (x0 * (2.0 * w0 + w1) + x1 * (w0 + 2.0 * w1)) / 6.0;
+    };
+    let w_half = half - base;
+    if hl > lo {
+        seg(cross(mz, y, hl - 1, half), w_half, mz[hl], y[hl] - base);
+    }
+    for k in hl..hr {
+        seg(mz[k], y[k] - base, mz[k + 1], y[k + 1] - base);
+    }
+    if hr < hi {
+        seg(mz[hr], y[hr] - base, cross(mz, y, hr, half), w_half);
+    }
+    let m = moment / area;
+    (area > 0.0 && m.is_finite()).then_some(m)
 }
 
 fn weighted(mz: &[f64], y: &[f64], l: usize, r: usize, base: f64) -> Option<f64> {
