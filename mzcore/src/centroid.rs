@@ -72,6 +72,9 @@ pub enum NoiseMethod {
         /// Points per block (at least 1; 500 to 2000 is typical).
         window: usize,
     },
+    /// A known baseline and noise level (e.g. from blank runs, or for data whose instrument
+    /// already removed the baseline so that a median sees mostly peak points).
+    Fixed(NoiseLevel),
 }
 
 /// How the apex m/z of a profile peak is interpolated.
@@ -140,8 +143,8 @@ impl CentroidParams {
     /// ```
     pub fn validate(&self) -> Result<()> {
         let bad = |what: &str| Err(Error::new(ErrorKind::Config(format!("centroid: {what}"))));
-        if !self.min_snr.is_finite() {
-            return bad("min_snr must be finite");
+        if !(self.min_snr.is_finite() && self.min_snr >= 0.0) {
+            return bad("min_snr must be finite and >= 0");
         }
         if !(0.0..=1.0).contains(&self.min_valley_depth) {
             return bad("min_valley_depth must be between 0 and 1");
@@ -155,8 +158,16 @@ impl CentroidParams {
         if !(self.gap_factor.is_finite() && self.gap_factor > 1.0) {
             return bad("gap_factor must be finite and > 1");
         }
-        if let NoiseMethod::Sliding { window: 0 } = self.noise {
-            return bad("sliding noise window must be at least 1 point");
+        match self.noise {
+            NoiseMethod::Sliding { window: 0 } => {
+                return bad("sliding noise window must be at least 1 point");
+            }
+            NoiseMethod::Fixed(l)
+                if !(l.baseline.is_finite() && l.sigma.is_finite() && l.sigma > 0.0) =>
+            {
+                return bad("fixed noise needs a finite baseline and a finite sigma > 0");
+            }
+            _ => {}
         }
         Ok(())
     }
@@ -193,7 +204,8 @@ impl Centroider {
         Self::default()
     }
 
-    /// The noise levels of the last spectrum: one for [`NoiseMethod::Global`], one per block
+    /// The noise levels of the last spectrum: one for [`NoiseMethod::Global`] and
+    /// [`NoiseMethod::Fixed`] (invalid fixed values replaced by baseline 0, sigma 1), one per block
     /// (see [`Centroider::noise_block_len`]) for [`NoiseMethod::Sliding`].
     pub fn noise(&self) -> &[NoiseLevel] {
         &self.noise
@@ -218,6 +230,14 @@ impl Centroider {
                     self.noise.push(NoiseLevel::default());
                 }
                 self.block_len = window;
+            }
+            NoiseMethod::Fixed(level) => {
+                self.noise.clear();
+                let sigma =
+                    if level.sigma.is_finite() && level.sigma > 0.0 { level.sigma } else { 1.0 };
+                let baseline = if level.baseline.is_finite() { level.baseline } else { 0.0 };
+                self.noise.push(NoiseLevel { baseline, sigma });
+                self.block_len = intensity.len().max(1);
             }
         }
     }

@@ -195,3 +195,32 @@ fn centroided_input_gets_the_same_threshold() {
     assert!((out[0].snr - 388.0 / 1.482_602_218_505_602).abs() < 1e-9);
     assert_eq!(out[0].fwhm, 0.0);
 }
+
+#[test]
+fn fixed_noise_for_baseline_free_data() {
+    // Only zero-flanked peak islands, as from an instrument that drops everything below its
+    // own threshold: the median sees mostly peak points, so a known noise level is given.
+    let (mut mz, mut y) = (Vec::new(), Vec::new());
+    for p in 0..20 {
+        let centre = 300.0 + p as f64;
+        for k in 0..12 {
+            let m = centre - 0.0052 + 0.001 * k as f64;
+            mz.push(m);
+            y.push(if k == 0 || k == 11 {
+                0.0
+            } else {
+                gauss(m, centre, 0.005, 100.0 * (p + 1) as f64)
+            });
+        }
+    }
+    let fixed = CentroidParams {
+        noise: NoiseMethod::Fixed(mzcore::centroid::NoiseLevel { baseline: 0.0, sigma: 5.0 }),
+        ..defaults()
+    };
+    fixed.validate().unwrap();
+    let c = pick(&mz, &y, &fixed);
+    assert_eq!(c.len(), 20, "{c:?}");
+    assert!((c[0].snr - 20.0).abs() < 0.5, "S/N against the given sigma: {}", c[0].snr);
+    // The median estimate, by contrast, sits on the peaks and loses the small ones.
+    assert!(pick(&mz, &y, &defaults()).len() < 20);
+}

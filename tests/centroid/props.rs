@@ -20,13 +20,18 @@ fn params_strategy() -> impl Strategy<Value = CentroidParams> {
             Just(NoiseMethod::Global),
             (1usize..50).prop_map(|window| NoiseMethod::Sliding { window })
         ],
-        0.0f64..10.0,
+        -5.0f64..10.0,
+        (0.0f64..=1.0, 0.0f64..10.0, 0.0f64..=1.0, 1.01f64..5.0),
     )
-        .prop_map(|(apex, noise, min_snr)| CentroidParams {
+        .prop_map(|(apex, noise, min_snr, (depth, valley_snr, spike, gap))| CentroidParams {
             apex,
             noise,
+            // Negative values are refused by `validate`, but must not panic either.
             min_snr,
-            ..CentroidParams::default()
+            min_valley_depth: depth,
+            min_valley_snr: valley_snr,
+            spike_ratio: spike,
+            gap_factor: gap,
         })
 }
 

@@ -295,7 +295,11 @@ fn finish(s: &Spectrum<'_>, g: &Group, params: &CentroidParams, out: &mut Vec<Ce
         };
         match fit {
             Some(f) if params.apex != ApexMethod::WeightedHalfHeight => {
-                (f.mu, base + f.height.clamp(0.5 * (h - base), 2.0 * (h - base)))
+                {
+                    // Keep the fitted height near the highest point (noise can inflate it).
+                    let span = (h - base).max(0.0);
+                    (f.mu, base + f.height.clamp(0.5 * span, 2.0 * span))
+                }
             }
             _ => {
                 // Weighted centroid above half height (also the fallback of the fits).
