@@ -45,6 +45,7 @@ use std::cell::RefCell;
 
 use serde::{Deserialize, Serialize};
 
+use crate::spectrum::{Peaks, Representation};
 use crate::{Error, ErrorKind, Result};
 
 mod apex;
@@ -324,6 +325,65 @@ impl Centroider {
             }
         }
     }
+}
+
+impl Centroider {
+    /// Centroids profile data or thresholds centroided data, as `representation` says; data
+    /// of unknown representation is judged by [`looks_like_profile`]. Returns the
+    /// representation acted on (never [`Representation::Unknown`]).
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use mzcore::centroid::{Centroider, CentroidParams};
+    /// use mzcore::spectrum::{Peaks, Representation};
+    /// let peaks = Peaks { mz: vec![100.0, 150.2, 207.9], intensity: vec![5.0, 900.0, 6.0] };
+    /// let (mut picker, mut out) = (Centroider::new(), Vec::new());
+    /// let used = picker.pick(&peaks, Representation::Unknown, &CentroidParams::default(), &mut out);
+    /// assert_eq!(used, Representation::Centroid);
+    /// assert_eq!(out.len(), 1);
+    /// ```
+    pub fn pick(
+        &mut self,
+        peaks: &Peaks,
+        representation: Representation,
+        params: &CentroidParams,
+        out: &mut Vec<Centroid>,
+    ) -> Representation {
+        let used = match representation {
+            Representation::Unknown if looks_like_profile(&peaks.mz) => Representation::Profile,
+            Representation::Unknown => Representation::Centroid,
+            known => known,
+        };
+        if used == Representation::Profile {
+            self.centroid_profile(&peaks.mz, &peaks.intensity, params, out);
+        } else {
+            self.threshold_centroided(&peaks.mz, &peaks.intensity, params, out);
+        }
+        used
+    }
+}
+
+/// Guesses whether points are profile samples: in profile data most neighbouring spacings
+/// are nearly equal (ratio within 0.8 to 1.25), in centroid lists they are irregular. Looks at
+/// up to 256 spacing pairs; fewer than 8 points count as centroided.
+pub fn looks_like_profile(mz: &[f64]) -> bool {
+    let n = mz.len();
+    if n < 8 {
+        return false;
+    }
+    let stride = (n - 2).div_ceil(256).max(1);
+    let (mut pairs, mut even) = (0u32, 0u32);
+    let mut k = 0;
+    while k + 2 < n {
+        let (a, b) = (mz[k + 1] - mz[k], mz[k + 2] - mz[k + 1]);
+        if a > 0.0 && b > 0.0 && (a / b).is_finite() {
+            pairs += 1;
+            even += u32::from((0.8..=1.25).contains(&(a / b)));
+        }
+        k += stride;
+    }
+    pairs > 0 && 2 * even >= pairs
 }
 
 thread_local! {

@@ -224,3 +224,25 @@ fn fixed_noise_for_baseline_free_data() {
     // The median estimate, by contrast, sits on the peaks and loses the small ones.
     assert!(pick(&mz, &y, &defaults()).len() < 20);
 }
+
+#[test]
+fn representation_is_guessed_from_spacing() {
+    use mzcore::centroid::looks_like_profile;
+    use mzcore::spectrum::{Peaks, Representation};
+    let (mz, y) = baseline(200.0, 0.001, 500);
+    assert!(looks_like_profile(&mz));
+    // Irregular spacings of a centroid list: unit steps plus scrambled offsets of 0 to 0.8.
+    let list: Vec<f64> =
+        (0..200).map(|k| 100.0 + k as f64 + ((k * 37) % 11) as f64 * 0.08).collect();
+    assert!(!looks_like_profile(&list));
+    assert!(!looks_like_profile(&mz[..5]));
+    let peaks = Peaks { mz, intensity: y };
+    let mut picker = Centroider::new();
+    let mut out = Vec::new();
+    let used = picker.pick(&peaks, Representation::Unknown, &defaults(), &mut out);
+    assert_eq!(used, Representation::Profile);
+    assert_eq!(
+        picker.pick(&peaks, Representation::Centroid, &defaults(), &mut out),
+        Representation::Centroid
+    );
+}
