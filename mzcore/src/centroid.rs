@@ -1,21 +1,27 @@
 //! Centroiding: profile points to peaks, and one S/N threshold for both peak types.
 //!
-//! Data flow for one spectrum: a robust noise estimate ([`estimate_noise`], global or per block
-//! of points) gives a baseline and a noise sigma; points above `baseline + min_snr * sigma` that
-//! are local maxima (a flat top counts as one) become candidate apexes; neighbouring candidates
-//! on the same sampled island whose valley is shallow are merged; one-point spikes are dropped;
-//! each remaining peak gets an interpolated apex m/z ([`ApexMethod`]), height, area, FWHM and
-//! S/N in a [`Centroid`].
+//! Data flow for one spectrum: a robust noise estimate ([`estimate_noise`]: median and MAD,
+//! global or per block of points, or a [`NoiseMethod::Fixed`] level) gives a baseline and a
+//! noise sigma; points above `baseline + min_snr * sigma` that are local maxima become candidate
+//! apexes (a flat top of equal points counts as one, its apex at the plateau centre with the
+//! plateau height); neighbouring candidates on the same sampled island whose valley is shallow
+//! are merged; one-point spikes are dropped; each remaining peak gets an interpolated apex m/z
+//! ([`ApexMethod`]), height, area, FWHM and S/N in a [`Centroid`]. S/N is measured against the
+//! baseline noise sigma, so with shot noise a peak's S/N is higher than its height over the
+//! noise at its apex.
 //!
 //! Profile data from real instruments is sampled non-uniformly and often has runs of zero
 //! points removed. Two neighbouring points are on the same *island* when their spacing is
 //! not much larger than the spacings next to it and than the typical spacing in that part of
-//! the spectrum (see [`CentroidParams::gap_factor`]); a peak never
-//! extends across a gap, and an island of two or three points can be a peak.
+//! the spectrum (see [`CentroidParams::gap_factor`]); a peak never extends across a gap, and
+//! an island of two or three points can be a peak.
 //!
 //! [`Centroider`] holds the scratch buffers so that a worker thread can centroid spectrum after
-//! spectrum without allocating; [`centroid_profile`] and [`threshold_centroided`] are
-//! convenience functions using a thread-local [`Centroider`].
+//! spectrum without allocating ([`Centroider::pick`] chooses between profile centroiding and
+//! thresholding by the spectrum's representation); [`centroid_profile`] and
+//! [`threshold_centroided`] are convenience functions using a thread-local [`Centroider`].
+//! [`ResolutionAccumulator`] collects peak widths across spectra (and threads) to tell unit
+//! from high resolution data.
 //!
 //! # Examples
 //!
