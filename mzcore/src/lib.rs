@@ -31,6 +31,7 @@
 //! # Ok::<_, mzcore::Error>(())
 //! ```
 
+pub mod centroid;
 pub mod chem;
 pub mod error;
 pub mod mzml;
