@@ -11,6 +11,10 @@
 //!
 //! Every throughput is counted in base64 input bytes of the spectrum (both arrays), so the
 //! figures of all groups are comparable. Run: `cargo bench --bench codecs`.
+//!
+//! Time is the benchmark thread's CPU time (`CLOCK_THREAD_CPUTIME_ID`, through `cpu-time`)
+//! where available, so that other processes on a shared machine do not skew the ratios; set
+//! `CODECS_WALL_CLOCK=1` to measure wall-clock time instead (also the fallback elsewhere).
 
 // criterion_group! generates an undocumented `pub fn`.
 #![allow(missing_docs)]
@@ -19,10 +23,64 @@ use std::hint::black_box;
 use std::io::Read;
 
 use base64::Engine;
+use criterion::measurement::{Measurement, ValueFormatter, WallTime};
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use mzcore::mzml::binary::{self, BinaryEncoding, Compression, NumericType};
 
 const POINTS: usize = 20_000;
+
+/// CPU time of the calling thread in nanoseconds (`clock_gettime(CLOCK_THREAD_CPUTIME_ID)`).
+fn thread_cpu_ns() -> Option<u64> {
+    cpu_time::ThreadTime::try_now().ok().map(|t| t.as_duration().as_nanos() as u64)
+}
+
+/// Criterion measurement of thread CPU time, falling back to wall-clock time.
+struct CpuTime {
+    cpu: bool,
+}
+
+impl CpuTime {
+    fn new() -> Self {
+        let wall = std::env::var_os("CODECS_WALL_CLOCK").is_some_and(|v| v != "0");
+        CpuTime { cpu: !wall && thread_cpu_ns().is_some() }
+    }
+}
+
+static WALL: WallTime = WallTime;
+
+impl Measurement for CpuTime {
+    type Intermediate = (u64, std::time::Instant);
+    type Value = u64;
+
+    fn start(&self) -> Self::Intermediate {
+        (if self.cpu { thread_cpu_ns().unwrap_or(0) } else { 0 }, std::time::Instant::now())
+    }
+
+    fn end(&self, (cpu, wall): Self::Intermediate) -> u64 {
+        if self.cpu {
+            thread_cpu_ns().unwrap_or(cpu).saturating_sub(cpu)
+        } else {
+            wall.elapsed().as_nanos() as u64
+        }
+    }
+
+    fn add(&self, a: &u64, b: &u64) -> u64 {
+        a + b
+    }
+
+    fn zero(&self) -> u64 {
+        0
+    }
+
+    fn to_f64(&self, v: &u64) -> f64 {
+        *v as f64
+    }
+
+    fn formatter(&self) -> &dyn ValueFormatter {
+        // Values are nanoseconds, as with wall time, so its formatting applies unchanged.
+        WALL.formatter()
+    }
+}
 
 /// Deterministic pseudo-random numbers in [0, 1) (64-bit LCG, Knuth's MMIX constants).
 struct Lcg(u64);
@@ -117,7 +175,7 @@ fn libdeflate(input: &[u8], out: &mut [u8], d: &mut libdeflater::Decompressor) -
     d.zlib_decompress(input, out).unwrap()
 }
 
-fn bench(c: &mut Criterion) {
+fn bench(c: &mut Criterion<CpuTime>) {
     let payloads = payloads();
     let text_bytes: usize = payloads.iter().map(|p| p.text.len()).sum();
     let max_decoded = payloads.iter().map(|p| p.decoded_bytes).max().unwrap();
@@ -130,7 +188,7 @@ fn bench(c: &mut Criterion) {
     let mut g = c.benchmark_group("codecs");
     g.throughput(Throughput::Bytes(text_bytes as u64));
     g.warm_up_time(std::time::Duration::from_secs(1));
-    g.measurement_time(std::time::Duration::from_secs(3));
+    g.measurement_time(std::time::Duration::from_secs(5));
 
     let mut buf = Vec::new();
     g.bench_function("base64/base64-0.22", |b| {
@@ -231,5 +289,15 @@ fn bench(c: &mut Criterion) {
     g.finish();
 }
 
-criterion_group!(benches, bench);
+fn config() -> Criterion<CpuTime> {
+    let m = CpuTime::new();
+    eprintln!("measuring {}", if m.cpu { "thread CPU time" } else { "wall-clock time" });
+    Criterion::default().with_measurement(m)
+}
+
+criterion_group! {
+    name = benches;
+    config = config();
+    targets = bench
+}
 criterion_main!(benches);
