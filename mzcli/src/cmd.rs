@@ -4,6 +4,7 @@ pub mod info;
 pub mod list;
 pub mod mass;
 pub mod pattern;
+pub mod peaks;
 
 use std::io::BufRead;
 use std::path::Path;

@@ -31,6 +31,11 @@ enum Command {
         after_help = "Examples:\n  mzsift info fixtures/variant-zlib-f64.mzML\n  mzsift info --verify --format json run.mzML"
     )]
     Info(cmd::info::InfoArgs),
+    /// Peaks (mz intensity area snr fwhm) of one spectrum, or its decoded points with --raw.
+    #[command(
+        after_help = "Examples:\n  mzsift peaks run.mzML --index 12\n  mzsift peaks run.mzML --id scan=13 --raw"
+    )]
+    Peaks(cmd::peaks::PeaksArgs),
     /// Isotope pattern of a formula as TSV (shells, fine structure, or at a resolving power).
     #[command(
         after_help = "Examples:\n  mzsift pattern C12H7Cl3O2 --ion M+.\n  mzsift pattern C6Cl6 --shells\n  mzsift pattern C10H5Cl5 --ion M-H --resolution 60000"
@@ -54,6 +59,7 @@ fn main() -> ExitCode {
     let result = match &cli.command {
         Command::List(a) => cmd::list::run(a, &mut out),
         Command::Info(a) => cmd::info::run(a, &mut out),
+        Command::Peaks(a) => cmd::peaks::run(a, &mut out),
         Command::Pattern(a) => output::input_error_is_usage(cmd::pattern::run(a, &mut out)),
         Command::Mass(a) => output::input_error_is_usage(cmd::mass::run(a, &mut out)),
     };

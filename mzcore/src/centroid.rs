@@ -120,6 +120,10 @@ pub struct CentroidParams {
     /// this factor times the typical spacing in that part of the spectrum, is a gap (a dropped
     /// run of points). Default 1.6.
     pub gap_factor: f64,
+    /// Least S/N of a peak in already-centroided data, where S/N is measured against the
+    /// floor of the list (see [`Centroider::threshold_centroided`]). Default 1 (keep every
+    /// peak at or above the floor).
+    pub centroided_min_snr: f64,
 }
 
 impl Default for CentroidParams {
@@ -132,6 +136,7 @@ impl Default for CentroidParams {
             min_valley_snr: 5.0,
             spike_ratio: 0.25,
             gap_factor: 1.6,
+            centroided_min_snr: 1.0,
         }
     }
 }
@@ -312,22 +317,40 @@ impl Centroider {
         if n == 0 {
             return;
         }
-        self.estimate(&intensity[..n], params.noise);
-        for (block, noise) in self.noise.iter().enumerate() {
-            let start = block * self.block_len;
-            let end = (start + self.block_len).min(n);
-            let thr = noise.threshold(params.min_snr);
-            for i in start..end {
-                let (m, y) = (mz[i], intensity[i]);
-                if y > thr && y.is_finite() && m.is_finite() {
-                    out.push(Centroid {
-                        mz: m,
-                        intensity: y,
-                        area: y,
-                        snr: noise.snr(y),
-                        fwhm: 0.0,
-                    });
+        // Two kinds of centroid list occur. One still holds the noise (centroided without
+        // noise removal): most entries are noise, the median sits close to the floor, and the
+        // median/MAD estimate with `min_snr` applies as for profile data. The other holds only
+        // what the instrument kept: the median is a real peak, so S/N is measured against the
+        // floor of the list (its 10th percentile, baseline 0) with `centroided_min_snr`. A
+        // list counts as noise-dominated when its median is at most 3 times its floor.
+        let (noise, min_snr) = match params.noise {
+            NoiseMethod::Fixed(_) => {
+                self.estimate(&intensity[..n], params.noise);
+                (self.noise[0], params.min_snr)
+            }
+            _ => {
+                self.samples.clear();
+                self.samples
+                    .extend(intensity[..n].iter().copied().filter(|v| v.is_finite() && *v > 0.0));
+                if self.samples.is_empty() {
+                    (NoiseLevel { baseline: 0.0, sigma: 1.0 }, params.centroided_min_snr)
+                } else {
+                    let floor = noise::quantile_in_place(&mut self.samples, 0.1);
+                    let median = noise::quantile_in_place(&mut self.samples, 0.5);
+                    if median <= 3.0 * floor {
+                        self.estimate(&intensity[..n], params.noise);
+                        (self.noise[0], params.min_snr)
+                    } else {
+                        (NoiseLevel { baseline: 0.0, sigma: floor }, params.centroided_min_snr)
+                    }
                 }
+            }
+        };
+        let thr = noise.threshold(min_snr);
+        for i in 0..n {
+            let (m, y) = (mz[i], intensity[i]);
+            if y >= thr && y > 0.0 && y.is_finite() && m.is_finite() {
+                out.push(Centroid { mz: m, intensity: y, area: y, snr: noise.snr(y), fwhm: 0.0 });
             }
         }
     }

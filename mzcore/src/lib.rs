@@ -35,6 +35,7 @@ pub mod centroid;
 pub mod chem;
 pub mod error;
 pub mod mzml;
+pub mod pipeline;
 pub mod spectrum;
 
 pub use error::{Error, ErrorKind, Position, Result};

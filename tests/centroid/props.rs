@@ -32,6 +32,7 @@ fn params_strategy() -> impl Strategy<Value = CentroidParams> {
             min_valley_snr: valley_snr,
             spike_ratio: spike,
             gap_factor: gap,
+            centroided_min_snr: min_snr,
         })
 }
 

@@ -5,3 +5,4 @@ mod util;
 mod chem;
 mod info;
 mod list;
+mod peaks;
