@@ -34,6 +34,8 @@
 pub mod centroid;
 pub mod chem;
 pub mod error;
+pub mod feature;
+pub mod flag;
 pub mod mzml;
 pub mod pipeline;
 pub mod spectrum;

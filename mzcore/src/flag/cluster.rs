@@ -1,0 +1,235 @@
+//! Isotope clusters in one spectrum's centroids.
+//!
+//! Centroids with S/N at least [`FlagSettings::min_snr`] are tried as monoisotopic peaks in
+//! ascending m/z. For each:
+//!
+//! - **charge** (high resolution only): z = 3, then 2, is taken when the shell-1 window for z
+//!   (+1.00336/z) holds a peak of at least 3 % of the monoisotopic height *and* at least one
+//!   more window that a singly charged cluster cannot explain (shells 3 and 5 for z = 2;
+//!   shells 2, 4 and 5 for z = 3) holds a peak; otherwise z = 1. Requiring two windows keeps
+//!   chance coincidences with unrelated peaks rare. At unit resolution z = 1 (partners 0.5 u
+//!   apart are not resolved reliably);
+//! - **shells**: shell k collects every centroid with m/z in
+//!   `[mono + k x 0.99785 / z - tol, mono + k x 1.00336 / z + tol]` (34S/2 and 13C bound
+//!   the per-shell mass step of C, H, N, O, S, Cl and Br isotopologues; 37Cl and 81Br steps
+//!   are 0.99853 and 0.99898 per shell), summed, with the most intense one kept for the
+//!   spacing test;
+//! - **scoring** by [`super::halogen::score`]; when the best hypothesis fits
+//!   (misfit at most [`FlagSettings::max_misfit`]), the cluster is kept and its partner peaks
+//!   (shells 1 and up whose expected height is above the detection limit and whose observed
+//!   height is not far above expectation) are consumed, so they are not tried as
+//!   monoisotopic peaks. A misfit candidate (for example a small peak 2 u below an unrelated
+//!   one) consumes nothing and is dropped.
+
+use crate::centroid::{Centroid, Tolerance};
+use crate::chem::halogen::SHELLS;
+
+use super::FlagSettings;
+use super::halogen::{self, Score};
+
+/// 13C - 12C mass difference, u (AME2020 values of the isotope table, rounded).
+pub const C13_DELTA: f64 = 1.003_354_84;
+/// Smallest per-shell mass step considered (34S - 32S over two shells), u.
+pub const MIN_SHELL_STEP: f64 = 0.997_85;
+
+/// One observed cluster.
+#[derive(Debug, Clone)]
+pub struct Cluster {
+    /// Index of the monoisotopic centroid.
+    pub mono: usize,
+    /// Charge magnitude.
+    pub charge: u8,
+    /// Observed shells (intensities summed per window).
+    pub shells: Shells,
+    /// The scoring result.
+    pub score: Score,
+    /// Most intense peak height of the cluster.
+    pub apex: f64,
+}
+
+/// Observed shell intensities and noise of one candidate cluster.
+#[derive(Debug, Clone, Copy)]
+pub struct Shells {
+    /// Number of shells looked at.
+    pub len: usize,
+    /// Summed intensity per shell (0 when no peak).
+    pub intensity: [f64; SHELLS],
+    /// Noise sigma per shell (the noise of the strongest peak there, else the monoisotopic
+    /// peak's noise).
+    pub sigma: [f64; SHELLS],
+    /// Index of the most intense centroid per shell.
+    pub top: [Option<usize>; SHELLS],
+    /// Detection limit in S/N (smallest S/N in the centroid list, at least 1).
+    pub detect_snr: f64,
+}
+
+/// Noise sigma of a centroid (height over S/N), or `None` when S/N is not positive.
+fn sigma_of(c: &Centroid) -> Option<f64> {
+    (c.snr > 0.0 && c.intensity > 0.0).then(|| c.intensity / c.snr)
+}
+
+/// Index of the first centroid with m/z >= `x`, searching from `from`.
+fn lower_bound(c: &[Centroid], from: usize, x: f64) -> usize {
+    from + c[from..].partition_point(|p| p.mz < x)
+}
+
+/// Collects shells 0..len of the cluster whose monoisotopic peak is `mono`.
+pub fn collect_shells(
+    c: &[Centroid],
+    mono: usize,
+    z: u8,
+    tol: f64,
+    len: usize,
+    detect_snr: f64,
+) -> Shells {
+    let m = &c[mono];
+    let zf = f64::from(z);
+    let noise = sigma_of(m).unwrap_or(m.intensity.max(1e-12) / 10.0);
+    let mut s = Shells {
+        len,
+        intensity: [0.0; SHELLS],
+        sigma: [noise; SHELLS],
+        top: [None; SHELLS],
+        detect_snr,
+    };
+    s.intensity[0] = m.intensity;
+    s.top[0] = Some(mono);
+    let mut j = mono + 1;
+    for k in 1..len {
+        let kf = k as f64;
+        let lo = m.mz + kf * MIN_SHELL_STEP / zf - tol;
+        let hi = m.mz + kf * C13_DELTA / zf + tol;
+        // Unit-resolution windows may overlap: search from the previous window's start.
+        j = lower_bound(c, j, lo);
+        let mut best = 0.0;
+        let mut i = j;
+        while i < c.len() && c[i].mz <= hi {
+            s.intensity[k] += c[i].intensity;
+            if c[i].intensity > best {
+                best = c[i].intensity;
+                s.top[k] = Some(i);
+                if let Some(sg) = sigma_of(&c[i]) {
+                    s.sigma[k] = sg;
+                }
+            }
+            i += 1;
+        }
+    }
+    s
+}
+
+/// True when the window of shell `k` for charge `z` holds a peak of at least `min` height.
+fn window_has(c: &[Centroid], mono: usize, z: u8, k: usize, tol: f64, min: f64) -> bool {
+    let m = c[mono].mz;
+    let kf = k as f64;
+    let zf = f64::from(z);
+    let lo = m + kf * MIN_SHELL_STEP / zf - tol;
+    let hi = m + kf * C13_DELTA / zf + tol;
+    let mut i = lower_bound(c, mono + 1, lo);
+    while i < c.len() && c[i].mz <= hi {
+        if c[i].intensity >= min {
+            return true;
+        }
+        i += 1;
+    }
+    false
+}
+
+/// Charge of the cluster at `mono` (see the module docs).
+pub fn detect_charge(c: &[Centroid], mono: usize, tol: f64, max_charge: u8) -> u8 {
+    let min1 = 0.03 * c[mono].intensity;
+    for z in (2..=max_charge.min(3)).rev() {
+        let extra: &[usize] = if z == 3 { &[2, 4, 5] } else { &[3, 5] };
+        if window_has(c, mono, z, 1, tol, min1)
+            && extra.iter().any(|&k| window_has(c, mono, z, k, tol, 0.0))
+        {
+            return z;
+        }
+    }
+    1
+}
+
+/// Finds and scores the clusters of a spectrum (see the module docs).
+pub fn find_clusters(
+    c: &[Centroid],
+    tolerance: Tolerance,
+    high: bool,
+    settings: &FlagSettings,
+) -> Vec<Cluster> {
+    let detect_snr = c.iter().map(|p| p.snr).filter(|&s| s > 0.0).fold(f64::INFINITY, f64::min);
+    let detect_snr = if detect_snr.is_finite() { detect_snr.clamp(1.0, 10.0) } else { 3.0 };
+    let mut consumed = vec![false; c.len()];
+    let mut out = Vec::new();
+    for mono in 0..c.len() {
+        let m = &c[mono];
+        if consumed[mono] || !(m.snr >= settings.min_snr) || !(m.mz > 0.0) {
+            continue;
+        }
+        let tol = tolerance.at(m.mz);
+        let z = if high { detect_charge(c, mono, tol, settings.max_charge) } else { 1 };
+        let shells_len = halogen::shells_needed(m.mz * f64::from(z));
+        let shells = collect_shells(c, mono, z, tol, shells_len, detect_snr);
+        let score = halogen::score(c, &shells, m.mz, z, high, tol, settings);
+        if !(score.misfit <= settings.max_misfit) {
+            continue;
+        }
+        // Consume partner peaks that the fitted pattern explains.
+        for k in 1..shells.len {
+            let expect = score.fitted[k];
+            let lim = shells.detect_snr * shells.sigma[k];
+            if expect < lim {
+                continue;
+            }
+            if shells.intensity[k] <= 2.0 * expect + 3.0 * shells.sigma[k] {
+                let kf = k as f64;
+                let zf = f64::from(z);
+                let lo = m.mz + kf * MIN_SHELL_STEP / zf - tol;
+                let hi = m.mz + kf * C13_DELTA / zf + tol;
+                let mut i = lower_bound(c, mono + 1, lo);
+                while i < c.len() && c[i].mz <= hi {
+                    consumed[i] = true;
+                    i += 1;
+                }
+            }
+        }
+        let apex = (0..shells.len).map(|k| shells.intensity[k]).fold(0.0, f64::max);
+        out.push(Cluster { mono, charge: z, shells, score, apex });
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn peak(mz: f64, intensity: f64) -> Centroid {
+        Centroid { mz, intensity, area: intensity, snr: intensity / 10.0, fwhm: mz / 50_000.0 }
+    }
+
+    #[test]
+    fn shells_sum_fine_structure_and_charge_is_found() {
+        // Shell 2 of a z = 1 ion: 37Cl (+1.99705) and 13C2 (+2.00671) both land in it.
+        let c = vec![
+            peak(300.0, 1000.0),
+            peak(301.00336, 150.0),
+            peak(301.99705, 320.0),
+            peak(302.00671, 10.0),
+            peak(303.0, 30.0),
+        ];
+        let s = collect_shells(&c, 0, 1, 0.003, 5, 3.0);
+        assert_eq!(s.intensity[2], 330.0);
+        assert_eq!(s.top[2], Some(2));
+        assert_eq!(s.intensity[3], 30.0);
+        assert_eq!(detect_charge(&c, 0, 0.003, 3), 1);
+        // z = 2: partners every 0.50168.
+        let c2: Vec<Centroid> = (0..6)
+            .map(|k| peak(400.0 + k as f64 * C13_DELTA / 2.0, 1000.0 / (k + 1) as f64))
+            .collect();
+        assert_eq!(detect_charge(&c2, 0, 0.004, 3), 2);
+        assert_eq!(detect_charge(&c2, 0, 0.004, 1), 1);
+        // One stray peak at +0.5 is not enough for z = 2.
+        let mut c3 = c.clone();
+        c3.insert(1, peak(300.5017, 200.0));
+        assert_eq!(detect_charge(&c3, 0, 0.003, 3), 1);
+    }
+}
