@@ -1,10 +1,12 @@
 //! One module per subcommand, and what they share.
 
+pub mod config;
 pub mod info;
 pub mod list;
 pub mod mass;
 pub mod pattern;
 pub mod peaks;
+pub mod run;
 
 use std::io::BufRead;
 use std::path::Path;

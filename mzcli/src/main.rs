@@ -21,6 +21,21 @@ struct Cli {
 
 #[derive(Subcommand, Debug)]
 enum Command {
+    /// Screen a batch: every .mzML / .mzML.gz under the inputs, reports into OUTDIR.
+    #[command(
+        long_about = "Screens every input (folders are searched recursively for .mzML and .mzML.gz, \
+hidden entries skipped) and writes OUTDIR/batch.tsv, OUTDIR/run.json and, per input, \
+OUTDIR/<name>/{spectra,ions,features}.tsv. Every report is written to a temporary name and \
+renamed when complete. Exit code 0: all files ok; 1: some failed or were partial; 2: usage or \
+configuration error. Flags are screening hints, not identifications.",
+        after_help = "Examples:\n  mzsift run fixtures/demo -o night-report\n  mzsift run /data/night-04 -o out -j 2 --config lab.toml --resume"
+    )]
+    Run(cmd::run::RunArgs),
+    /// Print the default configuration as commented TOML (or check a configuration file).
+    #[command(
+        after_help = "Examples:\n  mzsift config > lab.toml\n  mzsift config --check lab.toml"
+    )]
+    Config(cmd::config::ConfigArgs),
     /// One TSV row per spectrum, computed from the decoded arrays.
     #[command(
         after_help = "Examples:\n  mzsift list fixtures/variant-zlib-f64.mzML\n  mzsift list run.mzML.gz > spectra.tsv"
@@ -57,6 +72,8 @@ fn main() -> ExitCode {
     let stdout = std::io::stdout();
     let mut out = std::io::BufWriter::new(stdout.lock());
     let result = match &cli.command {
+        Command::Run(a) => cmd::run::run(a),
+        Command::Config(a) => cmd::config::run(a, &mut out),
         Command::List(a) => cmd::list::run(a, &mut out),
         Command::Info(a) => cmd::info::run(a, &mut out),
         Command::Peaks(a) => cmd::peaks::run(a, &mut out),

@@ -16,20 +16,26 @@ fn main() -> Result<(), mzcore::Error> {
     let mut reader = Reader::from_path(&path)?;
     let mut per_level: BTreeMap<u8, (usize, usize)> = BTreeMap::new();
     let mut bad = 0;
-    pipeline::run(&mut reader, &pool, &PipelineSettings::default(), |_| (), |result| {
-        match result {
-            Ok((spectrum, ())) => {
-                let entry = per_level.entry(spectrum.meta.ms_level).or_default();
-                entry.0 += 1;
-                entry.1 += spectrum.centroids.len();
+    pipeline::run(
+        &mut reader,
+        &pool,
+        &PipelineSettings::default(),
+        |_| (),
+        |result| {
+            match result {
+                Ok((spectrum, ())) => {
+                    let entry = per_level.entry(spectrum.meta.ms_level).or_default();
+                    entry.0 += 1;
+                    entry.1 += spectrum.centroids.len();
+                }
+                Err(e) => {
+                    eprintln!("{path}: {e}");
+                    bad += 1;
+                }
             }
-            Err(e) => {
-                eprintln!("{path}: {e}");
-                bad += 1;
-            }
-        }
-        Ok(())
-    })?;
+            Ok(())
+        },
+    )?;
     println!("ms_level\tspectra\tpeaks");
     for (level, (spectra, peaks)) in per_level {
         println!("{level}\t{spectra}\t{peaks}");

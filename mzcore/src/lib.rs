@@ -38,6 +38,8 @@ pub mod feature;
 pub mod flag;
 pub mod mzml;
 pub mod pipeline;
+pub mod report;
+pub mod screen;
 pub mod spectrum;
 
 pub use error::{Error, ErrorKind, Position, Result};

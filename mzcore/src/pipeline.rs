@@ -126,7 +126,7 @@ thread_local! {
 ///     ..Default::default()
 /// };
 /// let mz: Vec<f64> = (0..50).map(|i| 100.0 + i as f64).collect();
-/// let mut intensity = vec![10.0; 50];
+/// let mut intensity: Vec<f64> = (0..50).map(|i| 10.0 + (i % 5) as f64).collect();
 /// intensity[20] = 5000.0;
 /// w.write_spectrum(&meta, &Peaks { mz, intensity })?;
 /// let doc = w.finish()?;

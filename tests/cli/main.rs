@@ -6,3 +6,4 @@ mod chem;
 mod info;
 mod list;
 mod peaks;
+mod run;

@@ -845,7 +845,8 @@ fn xml_error(e: quick_xml::Error, at: u64, limit: u64, complete: usize) -> Error
                 ErrorKind::Io(std::io::Error::new(io.kind(), io.to_string()))
             }
         }
-        quick_xml::Error::Syntax(s) => ErrorKind::Xml(s.to_string()),
+        // Every syntax error of the tokenizer is markup that the input ended inside of.
+        quick_xml::Error::Syntax(_) => ErrorKind::Truncated { complete_spectra: complete },
         other => ErrorKind::Xml(other.to_string()),
     };
     Error::at(kind, Position::at_byte(at))

@@ -1,0 +1,112 @@
+//! `mzsift config`: the default configuration as a commented TOML file.
+
+use std::io::Write;
+
+use mzcore::screen::ScreenConfig;
+
+use crate::output;
+
+/// Arguments of `mzsift config`.
+#[derive(clap::Args, Debug)]
+pub struct ConfigArgs {
+    /// Check this configuration file and print it with every default filled in, instead of
+    /// printing the defaults.
+    #[arg(long, value_hint = clap::ValueHint::FilePath)]
+    pub check: Option<std::path::PathBuf>,
+}
+
+/// One line of explanation per setting, keyed by `section.key`.
+const DOCS: &[(&str, &str)] = &[
+    ("threads", "worker threads shared by all files and spectra; 0 = one per core (-j overrides)"),
+    ("reader.verify_checksum", "verify the SHA-1 fileChecksum of indexed files"),
+    ("reader.max_event_bytes", "ceiling on one XML tag or one <binary> text, bytes"),
+    ("reader.max_array_length", "ceiling on a declared array length, values"),
+    ("reader.max_depth", "ceiling on element nesting inside a spectrum"),
+    (
+        "pipeline.in_flight",
+        "spectra alive at once; bounds memory together with the largest spectrum",
+    ),
+    ("pipeline.resolution", "\"auto\" (from each spectrum's peaks), \"unit\" or \"high\""),
+    ("centroid.min_snr", "least S/N of a profile peak's apex (noise: median/MAD)"),
+    (
+        "centroid.noise",
+        "noise estimate: \"Global\", or { Sliding = { window = N } } for a changing baseline",
+    ),
+    (
+        "centroid.apex",
+        "apex m/z: \"GaussianFit\", \"Gaussian3\" (3-point log-parabola) or \"WeightedHalfHeight\"",
+    ),
+    (
+        "centroid.min_valley_depth",
+        "two maxima stay separate if the valley is this fraction of the smaller",
+    ),
+    ("centroid.min_valley_snr", "... and this many noise sigmas deep"),
+    (
+        "centroid.spike_ratio",
+        "a one-point maximum is a spike unless a neighbour reaches this fraction",
+    ),
+    (
+        "centroid.gap_factor",
+        "a spacing this many times the neighbouring one is a gap (dropped points)",
+    ),
+    (
+        "centroid.centroided_min_snr",
+        "least S/N of a peak in clean centroided data, against the list's floor",
+    ),
+    ("flag.tolerance", "isotope partner tolerance: \"Auto\", { Ppm = 5.0 } or { Da = 0.3 }"),
+    ("flag.min_snr", "least S/N of a cluster's monoisotopic peak"),
+    ("flag.max_charge", "highest charge tried at high resolution (1 to 3)"),
+    (
+        "flag.ion_type",
+        "ion type for the nitrogen rule, e.g. \"M+.\" or \"[M+H]+\"; unset = from ionization and polarity",
+    ),
+    ("flag.min_halogen_probability", "least posterior probability of Cl/Br for a halogen flag"),
+    ("flag.max_misfit", "largest chi-square per degree of freedom of the best hypothesis"),
+    ("flag.relative_error", "relative intensity error of isotope peaks beyond the noise"),
+    (
+        "flag.ei_min_relative",
+        "EI molecular-ion candidate: least intensity relative to the base peak",
+    ),
+    ("flag.feature_min_scans", "least consecutive MS1 scans for a feature"),
+    ("flag.feature_max_gap", "MS1 scans that may be missing inside a feature"),
+];
+
+/// The TOML text with a `# ...` comment line above every documented key.
+pub fn commented(config: &ScreenConfig) -> String {
+    let mut out = String::from(
+        "# mzsift configuration. Every key is optional; a missing key takes the value shown.\n\
+         # Flags are screening hints, not identifications.\n",
+    );
+    let mut section = String::new();
+    for line in config.to_toml().lines() {
+        let trimmed = line.trim();
+        if let Some(name) = trimmed.strip_prefix('[').and_then(|s| s.strip_suffix(']')) {
+            section = name.to_owned();
+            out.push('\n');
+        } else if let Some((key, _)) = trimmed.split_once(" = ") {
+            let full = if section.is_empty() { key.to_owned() } else { format!("{section}.{key}") };
+            if let Some((_, doc)) = DOCS.iter().find(|(k, _)| *k == full) {
+                out.push_str(&format!("# {doc}\n"));
+            }
+        }
+        out.push_str(line);
+        out.push('\n');
+    }
+    out
+}
+
+/// Runs `mzsift config`; returns the exit code.
+pub fn run(args: &ConfigArgs, out: &mut dyn Write) -> anyhow::Result<u8> {
+    let config = match &args.check {
+        Some(path) => match super::run::load_config(Some(path), None) {
+            Ok(c) => c,
+            Err(e) => {
+                eprintln!("mzsift: {e:#}");
+                return Ok(output::USAGE);
+            }
+        },
+        None => ScreenConfig::default(),
+    };
+    out.write_all(commented(&config).as_bytes())?;
+    Ok(output::OK)
+}

@@ -1,0 +1,661 @@
+//! Screening one acquisition end to end: the entry point for embedding.
+//!
+//! [`screen_file`] (or [`screen_reader`]) streams a file through the parallel pipeline
+//! (decode, centroid, flag), groups flagged ions into features, and returns the same rows the
+//! TSV reports hold ([`FileReport`]), as serde-serializable structs. [`ScreenConfig`] holds every
+//! parameter; it reads from and writes to TOML.
+//!
+//! Flags are screening hints from isotope patterns and mass parity, not identifications.
+
+use std::fs::File;
+use std::io::{BufRead, BufReader, Read};
+use std::path::Path;
+
+use serde::{Deserialize, Serialize};
+use sha2::{Digest, Sha256};
+
+use crate::centroid::CentroidParams;
+use crate::error::{Error, ErrorKind, Result};
+use crate::feature::{Feature, FeatureBuilder};
+use crate::flag::{self, FlagSettings, FlaggedIon, OddNominal, SpectrumFlags};
+use crate::mzml::{Reader, ReaderOptions};
+use crate::pipeline::{self, PipelineSettings, ProcessedSpectrum};
+
+/// The cautions that go with every report.
+pub const CAUTION: &str = "Flags are screening hints from isotope patterns and mass parity, not \
+identifications. Confirm any finding with reference standards and accredited methods before any \
+regulatory, clinical or safety decision, and follow local regulations and laboratory practice.";
+
+/// Limits and checks of the mzML reader, as configured.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct ReaderSettings {
+    /// Verify the SHA-1 `fileChecksum` of indexed files.
+    pub verify_checksum: bool,
+    /// Ceiling on one XML event (a tag or one `<binary>` text), bytes.
+    pub max_event_bytes: u64,
+    /// Ceiling on a declared array length, values.
+    pub max_array_length: usize,
+    /// Ceiling on element nesting inside a spectrum.
+    pub max_depth: usize,
+}
+
+impl Default for ReaderSettings {
+    fn default() -> Self {
+        let d = ReaderOptions::default();
+        ReaderSettings {
+            verify_checksum: true,
+            max_event_bytes: d.max_event_bytes,
+            max_array_length: d.max_array_length,
+            max_depth: d.max_depth,
+        }
+    }
+}
+
+impl ReaderSettings {
+    /// The reader options these settings mean.
+    pub fn options(&self) -> ReaderOptions {
+        ReaderOptions::default()
+            .verify_checksum(self.verify_checksum)
+            .max_event_bytes(self.max_event_bytes)
+            .max_array_length(self.max_array_length)
+            .max_depth(self.max_depth)
+    }
+}
+
+/// Every parameter of a screening run.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, Default)]
+#[serde(deny_unknown_fields, default)]
+pub struct ScreenConfig {
+    /// Worker threads shared by all files and spectra (0: one per core).
+    pub threads: usize,
+    /// Reader limits and checksum verification.
+    pub reader: ReaderSettings,
+    /// Spectra in flight and the resolution decision.
+    pub pipeline: PipelineSettings,
+    /// Peak picking.
+    pub centroid: CentroidParams,
+    /// Halogen and nitrogen-rule flagging, and feature grouping.
+    pub flag: FlagSettings,
+}
+
+impl ScreenConfig {
+    /// Parses a TOML configuration; an unknown key or a wrong type is an error naming it.
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use mzcore::screen::ScreenConfig;
+    /// let c = ScreenConfig::from_toml("threads = 2\n[flag]\nmin_snr = 20.0\n")?;
+    /// assert_eq!((c.threads, c.flag.min_snr), (2, 20.0));
+    /// assert!(ScreenConfig::from_toml("[flag]\nmin_snrr = 1.0\n").is_err());
+    /// # Ok::<_, mzcore::Error>(())
+    /// ```
+    pub fn from_toml(text: &str) -> Result<Self> {
+        let c: ScreenConfig =
+            toml::from_str(text).map_err(|e| Error::new(ErrorKind::Config(e.to_string())))?;
+        c.validate()?;
+        Ok(c)
+    }
+
+    /// The configuration as TOML.
+    pub fn to_toml(&self) -> String {
+        toml::to_string_pretty(self).expect("the configuration always serializes")
+    }
+
+    /// Checks every setting's range.
+    pub fn validate(&self) -> Result<()> {
+        self.centroid.validate()?;
+        self.flag.validate()?;
+        if self.pipeline.in_flight == 0 {
+            return Err(Error::new(ErrorKind::Config(
+                "pipeline.in_flight must be at least 1".into(),
+            )));
+        }
+        Ok(())
+    }
+
+    fn pipeline_settings(&self) -> PipelineSettings {
+        PipelineSettings { centroid: self.centroid, ..self.pipeline.clone() }
+    }
+}
+
+/// How a file fared.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum FileStatus {
+    /// Every spectrum read and processed.
+    Ok,
+    /// Some spectra were unreadable, or the file was cut off or failed a check after some
+    /// spectra were read.
+    Partial,
+    /// Nothing could be read.
+    Failed,
+    /// Skipped (resume found complete reports for the unchanged input).
+    Skipped,
+}
+
+impl FileStatus {
+    /// The lower-case name used in reports.
+    pub fn name(self) -> &'static str {
+        match self {
+            FileStatus::Ok => "ok",
+            FileStatus::Partial => "partial",
+            FileStatus::Failed => "failed",
+            FileStatus::Skipped => "skipped",
+        }
+    }
+}
+
+/// A spectrum that could not be read or processed.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct UnreadableSpectrum {
+    /// Index, when known.
+    pub index: Option<usize>,
+    /// Native id, when known.
+    pub id: Option<String>,
+    /// Why.
+    pub error: String,
+}
+
+/// One row of `spectra.tsv`.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SpectrumRow {
+    /// Zero-based index in the file.
+    pub index: usize,
+    /// Native id.
+    pub id: String,
+    /// `ok` or `unreadable`.
+    pub status: &'static str,
+    /// MS level.
+    pub ms_level: Option<u8>,
+    /// `+`, `-` or empty.
+    pub polarity: &'static str,
+    /// How the data was treated: `profile` or `centroid`.
+    pub representation: &'static str,
+    /// Scan start time, minutes.
+    pub rt_min: Option<f64>,
+    /// Decoded points.
+    pub points: Option<usize>,
+    /// Picked peaks.
+    pub peaks: Option<usize>,
+    /// Sum of decoded intensities.
+    pub intensity_sum: Option<f64>,
+    /// m/z of the most intense point.
+    pub base_peak_mz: Option<f64>,
+    /// Intensity of the most intense point.
+    pub base_peak_intensity: Option<f64>,
+    /// `unit`, `high` or `unknown`.
+    pub resolution: &'static str,
+    /// Isotope clusters found.
+    pub clusters: Option<usize>,
+    /// Ions flagged (halogen clusters and the molecular-ion candidate).
+    pub flagged_ions: Option<usize>,
+    /// A halogen signature was found.
+    pub has_halogen: Option<bool>,
+    /// m/z of the best halogen assignment.
+    pub best_mz: Option<f64>,
+    /// Chlorine atoms of the best assignment.
+    pub best_n_cl: Option<u8>,
+    /// Bromine atoms of the best assignment.
+    pub best_n_br: Option<u8>,
+    /// Posterior probability of the best assignment.
+    pub best_score: Option<f64>,
+    /// Nitrogen rule of the molecular-ion candidate: `true`, `false` or `undecided`.
+    pub odd_nominal: Option<OddNominal>,
+    /// Why the spectrum is unreadable (escaped text).
+    pub error: String,
+}
+
+/// Column names of `spectra.tsv` (for an empty table).
+pub const SPECTRUM_COLUMNS: &[&str] = &[
+    "index",
+    "id",
+    "status",
+    "ms_level",
+    "polarity",
+    "representation",
+    "rt_min",
+    "points",
+    "peaks",
+    "intensity_sum",
+    "base_peak_mz",
+    "base_peak_intensity",
+    "resolution",
+    "clusters",
+    "flagged_ions",
+    "has_halogen",
+    "best_mz",
+    "best_n_cl",
+    "best_n_br",
+    "best_score",
+    "odd_nominal",
+    "error",
+];
+
+/// Column names of `ions.tsv` (the fields of [`FlaggedIon`]).
+pub const ION_COLUMNS: &[&str] = &[
+    "scan",
+    "spectrum_id",
+    "rt_min",
+    "mz",
+    "charge",
+    "intensity",
+    "snr",
+    "halogen",
+    "molecular_candidate",
+    "assignment",
+    "n_cl",
+    "n_br",
+    "score",
+    "halogen_probability",
+    "second",
+    "second_score",
+    "misfit",
+    "m2_ratio",
+    "m2_expected",
+    "m4_ratio",
+    "m4_expected",
+    "spacing",
+    "m2_delta",
+    "nominal_mass",
+    "odd_nominal",
+    "ion_type",
+    "tolerance_da",
+    "reason",
+];
+
+/// Column names of `features.tsv` (the fields of [`Feature`]).
+pub const FEATURE_COLUMNS: &[&str] = &[
+    "feature",
+    "mz",
+    "charge",
+    "rt_apex_min",
+    "rt_start_min",
+    "rt_end_min",
+    "scans",
+    "apex_scan",
+    "apex_intensity",
+    "area",
+    "halogen",
+    "n_cl",
+    "n_br",
+    "assignment",
+    "support",
+    "halogen_score",
+    "nominal_mass",
+    "odd_nominal",
+    "molecular_candidate",
+];
+
+fn resolution_name(r: crate::centroid::ResolutionClass) -> &'static str {
+    match r {
+        crate::centroid::ResolutionClass::Unit => "unit",
+        crate::centroid::ResolutionClass::High => "high",
+        crate::centroid::ResolutionClass::Unknown => "unknown",
+    }
+}
+
+impl SpectrumRow {
+    fn of(p: &ProcessedSpectrum, f: &SpectrumFlags) -> Self {
+        let m = &p.meta;
+        SpectrumRow {
+            index: m.index,
+            id: crate::report::escape_text(&m.id),
+            status: "ok",
+            ms_level: Some(m.ms_level),
+            polarity: m.polarity.symbol(),
+            representation: p.treated_as.name(),
+            rt_min: m.rt_min,
+            points: Some(p.stats.points),
+            peaks: Some(p.centroids.len()),
+            intensity_sum: Some(p.stats.intensity_sum),
+            base_peak_mz: p.stats.base_peak_mz,
+            base_peak_intensity: p.stats.base_peak_intensity,
+            resolution: resolution_name(p.resolution),
+            clusters: Some(f.clusters),
+            flagged_ions: Some(f.ions.len()),
+            has_halogen: Some(f.has_halogen),
+            best_mz: f.best.map(|b| b.mz),
+            best_n_cl: f.best.map(|b| b.n_cl),
+            best_n_br: f.best.map(|b| b.n_br),
+            best_score: f.best.map(|b| b.score),
+            odd_nominal: f.molecular_ion.map(|_| f.odd_nominal),
+            error: String::new(),
+        }
+    }
+
+    fn unreadable(index: usize, u: &UnreadableSpectrum) -> Self {
+        SpectrumRow {
+            index,
+            id: crate::report::escape_text(u.id.as_deref().unwrap_or("")),
+            status: "unreadable",
+            ms_level: None,
+            polarity: "",
+            representation: "",
+            rt_min: None,
+            points: None,
+            peaks: None,
+            intensity_sum: None,
+            base_peak_mz: None,
+            base_peak_intensity: None,
+            resolution: "",
+            clusters: None,
+            flagged_ions: None,
+            has_halogen: None,
+            best_mz: None,
+            best_n_cl: None,
+            best_n_br: None,
+            best_score: None,
+            odd_nominal: None,
+            error: crate::report::escape_text(&u.error),
+        }
+    }
+}
+
+/// What a file's screening found, summarised (one row of `batch.tsv`, plus detail).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct FileSummary {
+    /// How the file fared.
+    pub status: FileStatus,
+    /// The first file-level error (escaped), empty when none.
+    pub error: String,
+    /// Spectra read (readable ones).
+    pub spectra: usize,
+    /// MS1 spectra.
+    pub ms1: usize,
+    /// MS2 and higher spectra.
+    pub ms2: usize,
+    /// Earliest scan start time, minutes.
+    pub rt_start_min: Option<f64>,
+    /// Latest scan start time, minutes.
+    pub rt_end_min: Option<f64>,
+    /// Spectra with a halogen signature.
+    pub flagged_spectra: usize,
+    /// Features with a halogen assignment.
+    pub halogen_features: usize,
+    /// Features whose molecular ion has an odd nominal mass.
+    pub odd_nominal_features: usize,
+    /// Spectra that could not be read or processed.
+    pub unreadable: Vec<UnreadableSpectrum>,
+    /// Ids in the file's index that were never read (cut-off or skipped spectra).
+    pub missing_from_index: Vec<String>,
+    /// Entries in the file's index (indexed files read to the end).
+    pub index_entries: Option<usize>,
+    /// SHA-256 of the input bytes as stored (compressed or not), lower-case hex.
+    pub sha256: String,
+    /// Input size, bytes.
+    pub bytes: u64,
+}
+
+/// Everything the reports of one file hold.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct FileReport {
+    /// The summary.
+    pub summary: FileSummary,
+    /// One row per spectrum (unreadable ones included, with their error).
+    pub spectra: Vec<SpectrumRow>,
+    /// One row per flagged ion.
+    pub ions: Vec<FlaggedIon>,
+    /// One row per feature.
+    pub features: Vec<Feature>,
+}
+
+/// Hashes (SHA-256) every byte read through it.
+pub struct Sha256Reader<R> {
+    inner: R,
+    hasher: Sha256,
+    bytes: u64,
+}
+
+impl<R: BufRead> Sha256Reader<R> {
+    /// Wraps `inner`.
+    pub fn new(inner: R) -> Self {
+        Sha256Reader { inner, hasher: Sha256::new(), bytes: 0 }
+    }
+
+    /// Reads the rest of the input and returns its SHA-256 (hex) and byte count.
+    pub fn finish(mut self) -> std::io::Result<(String, u64)> {
+        std::io::copy(&mut self, &mut std::io::sink())?;
+        let hex = self.hasher.finalize().iter().map(|b| format!("{b:02x}")).collect();
+        Ok((hex, self.bytes))
+    }
+}
+
+impl<R: BufRead> Read for Sha256Reader<R> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        let available = self.fill_buf()?;
+        let n = available.len().min(buf.len());
+        buf[..n].copy_from_slice(&available[..n]);
+        self.consume(n);
+        Ok(n)
+    }
+}
+
+impl<R: BufRead> BufRead for Sha256Reader<R> {
+    fn fill_buf(&mut self) -> std::io::Result<&[u8]> {
+        self.inner.fill_buf()
+    }
+
+    fn consume(&mut self, amt: usize) {
+        if let Ok(buf) = self.inner.fill_buf() {
+            self.hasher.update(&buf[..amt.min(buf.len())]);
+        }
+        self.bytes += amt as u64;
+        self.inner.consume(amt);
+    }
+}
+
+/// Screens the file at `path` with `config` on `pool`.
+///
+/// Only an input that cannot be opened is an `Err`; everything wrong inside the file is in
+/// the report (status `failed` or `partial`, with the errors).
+pub fn screen_file(
+    path: &Path,
+    config: &ScreenConfig,
+    pool: &rayon::ThreadPool,
+) -> Result<FileReport> {
+    let file =
+        File::open(path).map_err(|e| Error::from(e).in_field(&path.display().to_string()))?;
+    let hashing = Sha256Reader::new(BufReader::with_capacity(256 * 1024, file));
+    screen_reader(hashing, config, pool)
+}
+
+/// Screens an mzML stream (plain or gzip) read through a [`Sha256Reader`].
+///
+/// # Examples
+///
+/// ```
+/// use mzcore::mzml::{Writer, WriterOptions};
+/// use mzcore::screen::{screen_reader, FileStatus, ScreenConfig, Sha256Reader};
+/// use mzcore::spectrum::{Peaks, SpectrumMeta};
+///
+/// let mut w = Writer::new(Vec::new(), WriterOptions::default())?;
+/// let meta = SpectrumMeta { id: "scan=1".into(), ms_level: 1, rt_min: Some(1.0), ..Default::default() };
+/// w.write_spectrum(&meta, &Peaks { mz: vec![100.0, 200.0], intensity: vec![10.0, 20.0] })?;
+/// let doc = w.finish()?;
+///
+/// let pool = mzcore::pipeline::thread_pool(1)?;
+/// let report = screen_reader(Sha256Reader::new(&doc[..]), &ScreenConfig::default(), &pool)?;
+/// assert_eq!(report.summary.status, FileStatus::Ok);
+/// assert_eq!(report.spectra.len(), 1);
+/// # Ok::<_, mzcore::Error>(())
+/// ```
+pub fn screen_reader<R: BufRead>(
+    input: Sha256Reader<R>,
+    config: &ScreenConfig,
+    pool: &rayon::ThreadPool,
+) -> Result<FileReport> {
+    config.validate()?;
+    let mut summary = FileSummary {
+        status: FileStatus::Ok,
+        error: String::new(),
+        spectra: 0,
+        ms1: 0,
+        ms2: 0,
+        rt_start_min: None,
+        rt_end_min: None,
+        flagged_spectra: 0,
+        halogen_features: 0,
+        odd_nominal_features: 0,
+        unreadable: Vec::new(),
+        missing_from_index: Vec::new(),
+        index_entries: None,
+        sha256: String::new(),
+        bytes: 0,
+    };
+    let mut spectra = Vec::new();
+    let mut ions = Vec::new();
+    let mut features = FeatureBuilder::new(&config.flag);
+    let mut file_errors: Vec<String> = Vec::new();
+    let mut reader = Reader::with_options(input, config.reader.options())?;
+    let flag_settings = config.flag.clone();
+    let extra = move |p: &ProcessedSpectrum| {
+        flag::flag_spectrum(&p.meta, &p.centroids, p.resolution, &flag_settings)
+    };
+    pipeline::run(&mut reader, pool, &config.pipeline_settings(), extra, |result| {
+        match result {
+            Ok((p, flags)) => {
+                summary.spectra += 1;
+                if p.meta.ms_level <= 1 {
+                    summary.ms1 += 1;
+                } else {
+                    summary.ms2 += 1;
+                }
+                if let Some(rt) = p.meta.rt_min {
+                    summary.rt_start_min =
+                        Some(summary.rt_start_min.map_or(rt, |v: f64| v.min(rt)));
+                    summary.rt_end_min = Some(summary.rt_end_min.map_or(rt, |v: f64| v.max(rt)));
+                }
+                summary.flagged_spectra += usize::from(flags.has_halogen);
+                spectra.push(SpectrumRow::of(&p, &flags));
+                features.push(&p.meta, &flags);
+                ions.extend(flags.ions.into_iter().map(|mut ion| {
+                    ion.spectrum_id = crate::report::escape_text(&ion.spectrum_id);
+                    ion.reason = crate::report::escape_text(&ion.reason);
+                    ion
+                }));
+            }
+            Err(e) => {
+                let pos = e.position();
+                if pos.spectrum_index.is_some() || pos.spectrum_id.is_some() {
+                    let u = UnreadableSpectrum {
+                        index: pos.spectrum_index,
+                        id: pos.spectrum_id.clone(),
+                        error: e.to_string(),
+                    };
+                    let index = u.index.unwrap_or(spectra.len());
+                    spectra.push(SpectrumRow::unreadable(index, &u));
+                    summary.unreadable.push(u);
+                }
+                // Problems of the file as a whole (index, checksum, a cut, an I/O failure, a
+                // limit) are file errors, whether or not they also cost a spectrum.
+                let whole_file = pos.spectrum_index.is_none()
+                    || matches!(
+                        e.kind(),
+                        ErrorKind::Truncated { .. }
+                            | ErrorKind::Io(_)
+                            | ErrorKind::LimitExceeded { .. }
+                    );
+                if whole_file {
+                    file_errors.push(e.to_string());
+                }
+            }
+        }
+        Ok(())
+    })?;
+    let index: Vec<String> = reader.index().iter().map(|(id, _)| id.clone()).collect();
+    if !index.is_empty() {
+        summary.index_entries = Some(index.len());
+        let seen: std::collections::HashSet<&str> = spectra
+            .iter()
+            .filter(|r| r.status == "ok")
+            .map(|r| r.id.as_str())
+            .chain(summary.unreadable.iter().filter_map(|u| u.id.as_deref()))
+            .collect();
+        summary.missing_from_index = index
+            .into_iter()
+            .filter(|id| !seen.contains(crate::report::escape_text(id).as_str()))
+            .collect();
+    }
+    let (sha256, bytes) = reader.into_inner().finish()?;
+    summary.sha256 = sha256;
+    summary.bytes = bytes;
+    let features = features.finish();
+    summary.halogen_features = features.iter().filter(|f| f.n_cl + f.n_br > 0).count();
+    summary.odd_nominal_features =
+        features.iter().filter(|f| f.odd_nominal == OddNominal::True).count();
+    summary.status =
+        if summary.spectra == 0 && !(file_errors.is_empty() && summary.unreadable.is_empty()) {
+            FileStatus::Failed
+        } else if !file_errors.is_empty()
+            || !summary.unreadable.is_empty()
+            || !summary.missing_from_index.is_empty()
+        {
+            FileStatus::Partial
+        } else {
+            FileStatus::Ok
+        };
+    let first = file_errors.first().cloned().or_else(|| {
+        summary
+            .unreadable
+            .first()
+            .map(|u| format!("{} unreadable spectra; first: {}", summary.unreadable.len(), u.error))
+    });
+    summary.error = crate::report::escape_text(&first.unwrap_or_default());
+    Ok(FileReport { summary, spectra, ions, features })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::centroid::{Centroid, ResolutionClass};
+    use crate::chem::isotopes::{Resolution, pattern};
+    use crate::chem::{Formula, IonType};
+    use crate::spectrum::{Polarity, SpectrumMeta};
+
+    fn header_of<T: Serialize>(row: &T) -> Vec<String> {
+        let mut out = Vec::new();
+        crate::report::write_tsv(&mut out, &[], std::slice::from_ref(row)).unwrap();
+        let text = String::from_utf8(out).unwrap();
+        text.lines().next().unwrap().split('\t').map(str::to_owned).collect()
+    }
+
+    #[test]
+    fn empty_table_headers_match_the_rows() {
+        // A dichlorobenzene [M+H]+ cluster, as centroids at S/N 1000.
+        let f = Formula::parse("C6H4Cl2").unwrap();
+        let ion = IonType::parse("M+H").unwrap();
+        let peaks = pattern(&f, Some(&ion), Resolution::ResolvingPower(60_000.0), 1e-4).unwrap();
+        let centroids: Vec<Centroid> = peaks
+            .iter()
+            .map(|p| Centroid {
+                mz: p.mz,
+                intensity: p.relative * 100.0,
+                area: p.relative,
+                snr: p.relative * 10.0,
+                fwhm: p.mz / 60_000.0,
+            })
+            .collect();
+        let settings = FlagSettings::default();
+        let mut builder = FeatureBuilder::new(&settings);
+        let mut ions = Vec::new();
+        for i in 0..4 {
+            let meta = SpectrumMeta {
+                index: i,
+                id: format!("scan={i}"),
+                ms_level: 1,
+                polarity: Polarity::Positive,
+                rt_min: Some(i as f64 * 0.05),
+                ..Default::default()
+            };
+            let flags = flag::flag_spectrum(&meta, &centroids, ResolutionClass::High, &settings);
+            builder.push(&meta, &flags);
+            ions.extend(flags.ions);
+        }
+        let features = builder.finish();
+        assert!(!ions.is_empty() && !features.is_empty(), "test setup: nothing flagged");
+        assert_eq!(header_of(&ions[0]), ION_COLUMNS);
+        assert_eq!(header_of(&features[0]), FEATURE_COLUMNS);
+    }
+}
