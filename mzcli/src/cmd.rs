@@ -1,5 +1,6 @@
 //! One module per subcommand, and what they share.
 
+pub mod demo;
 pub mod info;
 pub mod list;
 pub mod mass;

@@ -35,5 +35,6 @@ pub mod chem;
 pub mod error;
 pub mod mzml;
 pub mod spectrum;
+pub mod synth;
 
 pub use error::{Error, ErrorKind, Position, Result};
