@@ -3,5 +3,6 @@
 mod util;
 
 mod chem;
+mod demo;
 mod info;
 mod list;

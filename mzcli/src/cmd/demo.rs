@@ -33,6 +33,13 @@ pub struct DemoArgs {
     /// centroid spectra filled up with noise peaks to N.
     #[arg(long, value_name = "N")]
     pub points: Option<usize>,
+    /// Encoding of m/z arrays instead of the scenario's: f32, f64, i32, i64 or
+    /// numpress-linear, numpress-pic, numpress-slof, each optionally followed by -zlib.
+    #[arg(long, value_name = "ENCODING")]
+    pub mz_encoding: Option<String>,
+    /// Encoding of intensity arrays instead of the scenario's (same names).
+    #[arg(long, value_name = "ENCODING")]
+    pub intensity_encoding: Option<String>,
     /// Write only this run (its file stem); may be repeated.
     #[arg(long, value_name = "NAME")]
     pub run: Vec<String>,
@@ -54,7 +61,22 @@ pub fn run(args: &DemoArgs, out: &mut dyn Write) -> anyhow::Result<u8> {
         }
         None => (Scenario::demo(), true),
     };
-    let size = SizeOptions { ms1_scans: args.spectra, points: args.points };
+    let mut size =
+        SizeOptions { ms1_scans: args.spectra, points: args.points, ..Default::default() };
+    for (arg, slot) in [
+        (&args.mz_encoding, &mut size.mz_encoding),
+        (&args.intensity_encoding, &mut size.intensity_encoding),
+    ] {
+        if let Some(name) = arg {
+            match synth::parse_encoding(name) {
+                Ok(e) => *slot = Some(e),
+                Err(e) => {
+                    eprintln!("mzsift: {e}");
+                    return Ok(output::USAGE);
+                }
+            }
+        }
+    }
     let started = Instant::now();
     let written = match synth::generate(&scenario, &args.outdir, size, &args.run) {
         Ok(w) => w,

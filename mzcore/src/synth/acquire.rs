@@ -14,6 +14,7 @@ use super::scenario::{
 use super::shape::Elution;
 use crate::chem::{Formula, IonType, isotopes};
 use crate::error::Result;
+use crate::mzml::binary::BinaryEncoding;
 use crate::mzml::{EncodedPeaks, Writer, WriterOptions};
 use crate::spectrum::{Ionization, Peaks, Polarity, Precursor, Representation, SpectrumMeta};
 
@@ -26,7 +27,7 @@ const GAUSS: f64 = 4.0 * std::f64::consts::LN_2;
 /// Half-width of the window a peak is sampled over, in FWHM (the tail there is 3e-8).
 const WINDOW_FWHM: f64 = 2.5;
 
-/// Size overrides for benchmark inputs.
+/// Size and encoding overrides for benchmark inputs.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
 pub struct SizeOptions {
     /// MS1 scans per run (each possibly followed by MS2 scans), instead of scan rate x time.
@@ -34,6 +35,10 @@ pub struct SizeOptions {
     /// Points per spectrum: profile spectra are written on the full m/z grid with exactly
     /// this many points (no dropped zeros); centroid spectra are filled up with noise peaks.
     pub points: Option<usize>,
+    /// Encoding of m/z arrays instead of the instrument's.
+    pub mz_encoding: Option<BinaryEncoding>,
+    /// Encoding of intensity arrays instead of the instrument's.
+    pub intensity_encoding: Option<BinaryEncoding>,
 }
 
 /// A compound ion of one run with its isotope pattern and elution profile.
@@ -318,8 +323,14 @@ impl Acquisition {
         }
         let options = WriterOptions {
             spectrum_count: 0,
-            mz_encoding: parse_encoding(&inst.encoding.mz)?,
-            intensity_encoding: parse_encoding(&inst.encoding.intensity)?,
+            mz_encoding: match size.mz_encoding {
+                Some(e) => e,
+                None => parse_encoding(&inst.encoding.mz)?,
+            },
+            intensity_encoding: match size.intensity_encoding {
+                Some(e) => e,
+                None => parse_encoding(&inst.encoding.intensity)?,
+            },
             indexed: true,
             ionization: match inst.ionization {
                 Source::Ei => Ionization::Electron,
