@@ -1,6 +1,7 @@
 //! One module per subcommand, and what they share.
 
 pub mod config;
+pub mod demo;
 pub mod info;
 pub mod list;
 pub mod mass;

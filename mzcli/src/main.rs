@@ -59,6 +59,11 @@ configuration error. Flags are screening hints, not identifications.",
     /// Monoisotopic, nominal and average mass, ion m/z and nitrogen-rule parity of a formula.
     #[command(after_help = "Examples:\n  mzsift mass C8H10N4O2 --ion M+H\n  mzsift mass C12Br10O")]
     Mass(cmd::mass::MassArgs),
+    /// Writes the demo batch (or any scenario) as mzML with ground-truth TSVs.
+    #[command(
+        after_help = "Examples:\n  mzsift demo demo-batch\n  mzsift demo big --spectra 4000 --points 40000"
+    )]
+    Demo(cmd::demo::DemoArgs),
 }
 
 fn main() -> ExitCode {
@@ -79,6 +84,7 @@ fn main() -> ExitCode {
         Command::Peaks(a) => cmd::peaks::run(a, &mut out),
         Command::Pattern(a) => output::input_error_is_usage(cmd::pattern::run(a, &mut out)),
         Command::Mass(a) => output::input_error_is_usage(cmd::mass::run(a, &mut out)),
+        Command::Demo(a) => cmd::demo::run(a, &mut out),
     };
     let flushed = std::io::Write::flush(&mut out).map_err(anyhow::Error::from);
     output::finish(result.and_then(|code| flushed.map(|_| code)))

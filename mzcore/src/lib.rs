@@ -41,5 +41,6 @@ pub mod pipeline;
 pub mod report;
 pub mod screen;
 pub mod spectrum;
+pub mod synth;
 
 pub use error::{Error, ErrorKind, Position, Result};

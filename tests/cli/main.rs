@@ -3,6 +3,7 @@
 mod util;
 
 mod chem;
+mod demo;
 mod info;
 mod list;
 mod peaks;
