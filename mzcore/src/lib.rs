@@ -36,6 +36,7 @@ pub mod chem;
 pub mod error;
 pub mod feature;
 pub mod flag;
+pub mod hash;
 pub mod mzml;
 pub mod pipeline;
 pub mod report;

@@ -11,8 +11,8 @@ use std::fs::File;
 use std::io::{BufRead, BufReader, Read};
 use std::path::Path;
 
+use crate::hash::BackgroundDigest;
 use serde::{Deserialize, Serialize};
-use sha2::{Digest, Sha256};
 
 use crate::centroid::CentroidParams;
 use crate::error::{Error, ErrorKind, Result};
@@ -404,21 +404,20 @@ pub struct FileReport {
 /// Hashes (SHA-256) every byte read through it.
 pub struct Sha256Reader<R> {
     inner: R,
-    hasher: Sha256,
+    hasher: BackgroundDigest,
     bytes: u64,
 }
 
 impl<R: BufRead> Sha256Reader<R> {
     /// Wraps `inner`.
     pub fn new(inner: R) -> Self {
-        Sha256Reader { inner, hasher: Sha256::new(), bytes: 0 }
+        Sha256Reader { inner, hasher: BackgroundDigest::new::<sha2::Sha256>(), bytes: 0 }
     }
 
     /// Reads the rest of the input and returns its SHA-256 (hex) and byte count.
     pub fn finish(mut self) -> std::io::Result<(String, u64)> {
         std::io::copy(&mut self, &mut std::io::sink())?;
-        let hex = self.hasher.finalize().iter().map(|b| format!("{b:02x}")).collect();
-        Ok((hex, self.bytes))
+        Ok((self.hasher.finish(), self.bytes))
     }
 }
 

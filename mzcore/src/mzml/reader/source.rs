@@ -3,8 +3,8 @@
 
 use std::io::{self, BufRead, BufReader, Read};
 
+use crate::hash::BackgroundDigest;
 use flate2::bufread::MultiGzDecoder;
-use sha1::{Digest, Sha1};
 
 /// Plain or gzip-decompressed input, chosen from the first two bytes (gzip magic 1F 8B,
 /// RFC 1952 section 2.3.1).
@@ -99,7 +99,7 @@ impl std::error::Error for EventTooLarge {}
 /// `event_limit` bytes between two calls of [`Tracked::start_event`].
 pub(crate) struct Tracked<R: BufRead> {
     pub(crate) inner: Inner<R>,
-    hasher: Option<Sha1>,
+    hasher: Option<BackgroundDigest>,
     consumed: u64,
     event_start: u64,
     event_limit: u64,
@@ -107,7 +107,13 @@ pub(crate) struct Tracked<R: BufRead> {
 
 impl<R: BufRead> Tracked<R> {
     pub(crate) fn new(inner: Inner<R>, hash: bool, event_limit: u64) -> Self {
-        Tracked { inner, hasher: hash.then(Sha1::new), consumed: 0, event_start: 0, event_limit }
+        Tracked {
+            inner,
+            hasher: hash.then(BackgroundDigest::new::<sha1::Sha1>),
+            consumed: 0,
+            event_start: 0,
+            event_limit,
+        }
     }
 
     /// Marks the start of a new XML event for the size ceiling.
@@ -117,9 +123,7 @@ impl<R: BufRead> Tracked<R> {
 
     /// Stops hashing and returns the lower-case hex SHA-1 of everything consumed so far.
     pub(crate) fn finish_hash(&mut self) -> Option<String> {
-        self.hasher
-            .take()
-            .map(|h| h.finalize().iter().map(|b| format!("{b:02x}")).collect::<String>())
+        self.hasher.take().map(BackgroundDigest::finish)
     }
 }
 
