@@ -61,6 +61,7 @@
 //! ```
 
 mod acquire;
+pub mod evaluate;
 pub mod rng;
 mod scenario;
 pub mod shape;

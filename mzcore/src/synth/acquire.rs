@@ -780,7 +780,7 @@ pub struct WriteSummary {
 }
 
 /// One row of a truth TSV.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Deserialize)]
 pub struct TruthRow {
     /// Compound name.
     pub compound: String,

@@ -1,0 +1,37 @@
+//! The demo batch screened end to end, compared with its truth files
+//! (`mzcore::synth::evaluate`). The figures are printed by
+//! `cargo run --release -p mzcore --example demo_accuracy`; these bounds are looser guards.
+
+use std::path::Path;
+
+use mzcore::screen::{ScreenConfig, screen_file};
+use mzcore::synth::evaluate::{Evaluation, evaluate, read_truth};
+
+#[test]
+fn demo_batch_features_match_the_truth() {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("../fixtures/demo");
+    let pool = mzcore::pipeline::thread_pool(2).unwrap();
+    let mut total = Evaluation::default();
+    let mut files = 0;
+    for entry in std::fs::read_dir(&dir).unwrap() {
+        let path = entry.unwrap().path();
+        if path.extension().is_none_or(|e| e != "mzML") {
+            continue;
+        }
+        let truth = read_truth(&std::fs::read_to_string(path.with_extension("truth.tsv")).unwrap()).unwrap();
+        let report = screen_file(&path, &ScreenConfig::default(), &pool).unwrap();
+        total.add(evaluate(&truth, &report.features));
+        files += 1;
+    }
+    assert_eq!(files, 6);
+    assert!(total.found + total.missed >= 25, "{total:?}");
+    // No decoy (S, Si, plain organics) is flagged as halogenated, and halogen features away
+    // from halogenated compounds are rare.
+    assert_eq!(total.decoys_flagged, 0, "{total:?}");
+    assert!(total.precision() >= 0.9, "precision {}", total.precision());
+    // Guards against regressions of the current state (see the issue notes for the targets).
+    assert!(total.recall() >= 0.45, "recall {}", total.recall());
+    assert!(total.exact as f64 >= 0.85 * total.found as f64, "{total:?}");
+    assert_eq!(total.parity.1, 0, "wrong nitrogen-rule calls: {total:?}");
+    assert!(total.parity.0 >= 15, "{total:?}");
+}
