@@ -18,7 +18,8 @@ fn demo_batch_features_match_the_truth() {
         if path.extension().is_none_or(|e| e != "mzML") {
             continue;
         }
-        let truth = read_truth(&std::fs::read_to_string(path.with_extension("truth.tsv")).unwrap()).unwrap();
+        let truth = read_truth(&std::fs::read_to_string(path.with_extension("truth.tsv")).unwrap())
+            .unwrap();
         let report = screen_file(&path, &ScreenConfig::default(), &pool).unwrap();
         total.add(evaluate(&truth, &report.features));
         files += 1;
