@@ -221,3 +221,23 @@ fn killed_run_leaves_nothing_complete_looking_and_resume_equals_a_fresh_run() {
     let resumed: Vec<_> = reports(&out).into_iter().filter(|(n, _)| !n.starts_with('.')).collect();
     assert_eq!(resumed, reports(&dir.path().join("fresh")));
 }
+
+#[test]
+fn example_programs_run_on_the_demo_data() {
+    // The examples a lab pipeline would write (mzcore/examples): built by cargo for the test
+    // profile, run here on one demo file.
+    let demo =
+        crate::util::repo().join("fixtures/demo/DRWL0417-04_lc-neg_fennick-cross-effluent.mzML");
+    for example in ["flagged_features", "count_peaks"] {
+        let o = std::process::Command::new(env!("CARGO"))
+            .args(["run", "-q", "-p", "mzcore", "--example", example, "--"])
+            .arg(&demo)
+            .current_dir(crate::util::repo())
+            .env("CARGO_TARGET_DIR", crate::util::repo().join("target"))
+            .output()
+            .unwrap();
+        assert!(o.status.success(), "{example}: {}", stderr(&o));
+        let out = String::from_utf8(o.stdout).unwrap();
+        assert!(out.lines().count() >= 2, "{example}: {out}");
+    }
+}
