@@ -9,36 +9,60 @@
 //!   and `Si{k}` for k in 1..=8 (siloxanes, elemental sulfur, polysulfides): the k-fold
 //!   S or Si isotope polynomial convolved with the Cl0Br0 background of the remaining mass.
 //!
-//! Hypotheses heavier than the ion (by their 35Cl, 79Br, 32S or 28Si alone) are left out.
+//! Hypotheses heavier than the ion (by their 35Cl, 79Br or 32S alone) are left out, and so
+//! are Si_k hypotheses of ions lighter than 70 u per Si (each Si of a siloxane or
+//! trimethylsilyl group carries methyl groups and oxygen: 73-74 u per Si).
+//!
+//! The prior is flat over the Cl/Br hypotheses (including Cl0Br0); each look-alike family
+//! (sulfur, silicon) together weighs as much as one of them, split evenly over its counts.
 //!
 //! # Error model and score
 //!
 //! Shell k of the observed cluster has intensity `o_k` (sum of the centroids in its window)
 //! and noise sigma `s_k` (height over S/N of its strongest centroid, else of the
 //! monoisotopic peak). Under hypothesis h with expected shell fractions `e_k`, model spread
-//! `d_k` and a fitted scale `A` (weighted least squares over the observed shells, two
-//! reweighting passes), the variance of shell k is
+//! `d_k` and a fitted scale `A` (weighted least squares over the observed shells), the variance of shell k is
 //!
 //! `var_k = s_k^2 + (r A e_k)^2 + (A d_k)^2`
 //!
 //! with r = [`FlagSettings::relative_error`] (ion statistics and peak-shape effects). An
 //! observed shell contributes `(o_k - A e_k)^2 / var_k`; a shell with no centroid is
 //! *censored* at the detection limit `D_k = t s_k` (t the smallest S/N in the centroid list)
-//! and contributes `max(0, A e_k - D_k)^2 / var_k`. The log-likelihood is
-//! `-1/2 sum_k (chi2_k + ln var_k)`. The **score** of a hypothesis is its posterior
-//! probability under a flat prior over the feasible hypotheses (a softmax of the
-//! log-likelihoods); `halogen_probability` sums the posteriors of all hypotheses with at
+//! and contributes `max(0, A e_k - D_k)^2 / var_k`. The log-likelihood of a shell is that of
+//! a Gaussian, `-1/2 (chi2_k + ln var_k + ln 2 pi)`, except that a shell observed *above*
+//! expectation may also hold an unrelated peak: its likelihood is the mixture
+//! `(1 - p_k) N(excess) + p_k / (excess x L)`, with `p_k` the chance that an unrelated
+//! centroid falls into the window (the spectrum's centroid density times the window width)
+//! and heights of unrelated peaks taken as log-uniform over the spectrum's range
+//! (`L = ln(max height / min height)`). Missing intensity has no such excuse. The
+//! log-likelihood is the sum over shells. The **score** of a hypothesis is its posterior
+//! probability under the prior above (a softmax of the log-likelihoods plus log-priors); `halogen_probability` sums the posteriors of all hypotheses with at
 //! least one Cl or Br. The probability is only as calibrated as the error model; the
 //! `flag_accuracy` example prints how often the best assignment is right per score band.
 //! The **misfit** is the best hypothesis's chi-square per degree of freedom (shells with a
-//! centroid or an expected height above the detection limit, minus one).
+//! centroid or an expected height above the detection limit, minus one), with a shell above
+//! expectation contributing at most 4 (interference is common at unit resolution). The
+//! scale fit weighs shells above expectation by the probability that they hold no unrelated
+//! peak (three passes).
 //!
-//! When even the upper end of the observed M+2/M (plus three sigma) stays below 0.2 (one
-//! chlorine alone gives 0.32 and every Cl/Br hypothesis more), only `Cl0Br0` and `Cl1Br0`
+//! For clusters longer than six shells, every hypothesis is first fitted on shells M to M+5
+//! and only those within 20 log-likelihood units of the best there are fitted in full (the
+//! others would have posteriors below e^-20 unless the heavier shells reversed the order).
+//!
+//! When even the upper end of the observed M+2/M (plus three sigma) stays below 0.12 (one
+//! chlorine alone gives 0.32 and every Cl/Br hypothesis more; S3+ and Si3+ look-alikes give
+//! more than 0.12 and are scored in full), only `Cl0Br0` and `Cl1Br0`
 //! are scored: the others cannot do better than `Cl1Br0` there. This keeps the many
 //! non-halogenated clusters of a spectrum cheap.
 //!
 //! # M+2 spacing (high resolution)
+//!
+//! At high resolution the spacing also enters the likelihood: each hypothesis adds
+//! `-1/2 ((d - d_h) / s_d)^2`, with d the observed M+2 mass difference (below), d_h the
+//! abundance-weighted mean of the 37Cl and 81Br steps for Cl/Br hypotheses, the 34S or 30Si
+//! step for look-alikes, and the closest of 34S, 18O, 13C2 and 30Si for `Cl0Br0`; `s_d` is
+//! the measurement sigma below combined with 0.0002 u for unresolved blends. This tells
+//! Cl4 from Cl2Br1 when the intensities are ambiguous.
 //!
 //! The mass difference between the strongest centroid of shell 2 and the monoisotopic peak,
 //! times z, is compared with the halogen step(s) of the best halogen hypothesis (37Cl-35Cl
@@ -175,12 +199,30 @@ pub struct Score {
     pub reason: &'static str,
 }
 
+/// 37Cl/35Cl abundance ratio (IUPAC 2013: 24.24 / 75.76), weight of a Cl in the M+2 shell.
+const CL_M2_WEIGHT: f64 = 0.2424 / 0.7576;
+/// 81Br/79Br abundance ratio (49.31 / 50.69).
+const BR_M2_WEIGHT: f64 = 0.4931 / 0.5069;
 /// Sulfur counts tried as look-alikes.
 const SULFUR_COUNTS: [u8; 5] = [2, 3, 4, 6, 8];
 /// Silicon counts tried as look-alikes.
 const SILICON_COUNTS: [u8; 8] = [1, 2, 3, 4, 5, 6, 7, 8];
+/// Least ion mass per Si atom for a silicon look-alike, u (a dimethylsiloxane unit
+/// C2H6OSi weighs 74 u, a trimethylsilyl group 73 u).
+const SI_MIN_MASS: f64 = 70.0;
 /// Below this observed M+2/M upper bound only Cl0Br0 and Cl1Br0 are scored.
-const QUICK_M2_RATIO: f64 = 0.2;
+const QUICK_M2_RATIO: f64 = 0.12;
+/// Largest contribution of a shell observed above expectation to the misfit.
+const EXCESS_CAP: f64 = 4.0;
+/// Shells of the first pass for long clusters.
+const STAGE1_SHELLS: usize = 6;
+/// Hypotheses more than this far behind the best in the first pass (log-likelihood) are
+/// not fitted in full.
+const STAGE1_MARGIN: f64 = 20.0;
+/// ln(2 pi).
+const LN_2PI: f64 = 1.837_877_066_409_345_5;
+/// Model part of the M+2 spacing uncertainty (unresolved 34S, 18O, 13C2 blends), u.
+const SPACING_MODEL_SIGMA: f64 = 0.0002;
 
 /// Look-alike isotope polynomials: (S counts then Si counts) x shell, plus the light masses.
 struct Decoys {
@@ -254,38 +296,61 @@ struct Fit {
 fn fit(obs: &Shells, e: &[f64; SHELLS], d: &[f64; SHELLS], rel: f64) -> Fit {
     let n = obs.len;
     let mut scale = if e[0] > 0.0 { obs.intensity[0] / e[0] } else { obs.intensity[0] };
-    for _ in 0..2 {
+    for _ in 0..3 {
         let (mut num, mut den) = (0.0, 0.0);
         for k in 0..n {
             if obs.intensity[k] > 0.0 {
                 let v =
                     obs.sigma[k].powi(2) + (rel * scale * e[k]).powi(2) + (scale * d[k]).powi(2);
-                num += obs.intensity[k] * e[k] / v;
-                den += e[k] * e[k] / v;
+                // Shells above expectation count with the probability that they hold no
+                // unrelated peak (the mixture below), so interference does not pull the scale.
+                let r = obs.intensity[k] - scale * e[k];
+                let w = if r > 0.0 {
+                    let p = obs.interference[k];
+                    let a = -0.5 * (r * r / v + v.ln() + LN_2PI) + (1.0 - p).ln();
+                    let b = p.ln() - r.max(obs.sigma[k]).ln() - obs.ln_range.ln();
+                    1.0 / (1.0 + (b - a).exp())
+                } else {
+                    1.0
+                };
+                num += w * obs.intensity[k] * e[k] / v;
+                den += w * e[k] * e[k] / v;
             }
         }
         if den > 0.0 {
             scale = num / den;
         }
     }
-    let (mut chi2, mut lnv, mut informative) = (0.0, 0.0, 0);
+    let (mut chi2, mut loglik, mut informative) = (0.0, 0.0, 0);
     for k in 0..n {
         let v = obs.sigma[k].powi(2) + (rel * scale * e[k]).powi(2) + (scale * d[k]).powi(2);
         let expect = scale * e[k];
         let limit = obs.detect_snr * obs.sigma[k];
-        let r = if obs.intensity[k] > 0.0 {
+        let gauss = |r: f64| -0.5 * (r * r / v + v.ln() + LN_2PI);
+        if obs.intensity[k] > 0.0 {
             informative += 1;
-            obs.intensity[k] - expect
+            let r = obs.intensity[k] - expect;
+            if r > 0.0 {
+                // Signal, or signal plus an unrelated peak (see the module docs).
+                let p = obs.interference[k];
+                let a = gauss(r) + (1.0 - p).ln();
+                let b = p.ln() - r.max(obs.sigma[k]).ln() - obs.ln_range.ln();
+                loglik += a.max(b) + (-(a - b).abs()).exp().ln_1p();
+                chi2 += (r * r / v).min(EXCESS_CAP);
+            } else {
+                loglik += gauss(r);
+                chi2 += r * r / v;
+            }
         } else {
             if expect > limit {
                 informative += 1;
             }
-            (expect - limit).max(0.0)
-        };
-        chi2 += r * r / v;
-        lnv += v.ln();
+            let r = (expect - limit).max(0.0);
+            loglik += gauss(r);
+            chi2 += r * r / v;
+        }
     }
-    Fit { loglik: -0.5 * (chi2 + lnv), chi2, informative, scale }
+    Fit { loglik, chi2, informative, scale }
 }
 
 /// m/z uncertainty of a centroid (see the module docs).
@@ -364,15 +429,21 @@ pub fn score(
     let o0 = obs.intensity[0];
     let quick = obs.len <= 2 || obs.intensity[2] + 3.0 * obs.sigma[2] < QUICK_M2_RATIO * o0;
 
-    // Evaluate hypotheses, keeping the best two and a running log-sum-exp.
-    let mut results: Vec<(Hypothesis, f64, Fit, [f64; SHELLS])> = Vec::with_capacity(80);
+    // Collect the hypotheses with their log-priors, expected shells and spreads.
+    let mut cands: Vec<(Hypothesis, f64, [f64; SHELLS], [f64; SHELLS])> = Vec::with_capacity(80);
     let mut push = |h: Hypothesis, e: [f64; SHELLS], d: [f64; SHELLS]| {
-        let f = fit(obs, &e, &d, rel);
-        results.push((h, f.loglik, f, e));
+        let prior = match h {
+            Hypothesis::Halogen { .. } => 0.0,
+            Hypothesis::Sulfur(_) => -(SULFUR_COUNTS.len() as f64).ln(),
+            Hypothesis::Silicon(_) => -(SILICON_COUNTS.len() as f64).ln(),
+        };
+        cands.push((h, prior, e, d));
     };
+    // Only the shells looked at matter.
+    let n = obs.len.max(5);
     let to64 = |a: &[f32; SHELLS]| {
         let mut o = [0.0f64; SHELLS];
-        for (x, &y) in o.iter_mut().zip(a) {
+        for (x, &y) in o.iter_mut().zip(a).take(n) {
             *x = f64::from(y);
         }
         o
@@ -398,23 +469,71 @@ pub fn score(
                 SILICON_COUNTS.iter().map(|&k| (Hypothesis::Silicon(k), f64::from(k) * dec.si28)),
             );
         for (row, (h, light)) in kinds.enumerate() {
-            if light > mass {
+            let min_mass = match h {
+                Hypothesis::Silicon(k) => SI_MIN_MASS * f64::from(k),
+                _ => light,
+            };
+            if min_mass > mass + 0.5 {
                 continue;
             }
             let Some(bg) = model.expected(mass - light, 1, 0, 0) else { continue };
             let p = dec.poly.row(row);
             let (mut e, mut d) = ([0.0f64; SHELLS], [0.0f64; SHELLS]);
-            for i in 0..SHELLS {
+            for i in 0..n {
                 let (b, s) = (f64::from(bg.shells[i]), f64::from(bg.spread[i]));
                 if b == 0.0 && s == 0.0 {
                     continue;
                 }
-                for j in 0..SHELLS - i {
+                for j in 0..n - i {
                     e[i + j] += b * p[j];
                     d[i + j] += s * p[j];
                 }
             }
             push(h, e, d);
+        }
+    }
+    // Long clusters: a first pass on shells M to M+5 drops hypotheses far behind there.
+    let keep: Vec<bool> = if obs.len > STAGE1_SHELLS && cands.len() > 2 {
+        let short = Shells { len: STAGE1_SHELLS, ..*obs };
+        let ll: Vec<f64> =
+            cands.iter().map(|(_, prior, e, d)| fit(&short, e, d, rel).loglik + prior).collect();
+        let best = ll.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        ll.iter().map(|&l| l >= best - STAGE1_MARGIN).collect()
+    } else {
+        vec![true; cands.len()]
+    };
+    let mut results: Vec<(Hypothesis, f64, Fit, [f64; SHELLS])> = cands
+        .iter()
+        .zip(&keep)
+        .filter(|(_, k)| **k)
+        .map(|((h, prior, e, d), _)| {
+            let f = fit(obs, e, d, rel);
+            (*h, f.loglik + prior, f, *e)
+        })
+        .collect();
+    // High resolution: the M+2 spacing enters the likelihood (see the module docs).
+    if let (true, Some(i0), Some(i2)) = (high, obs.top[0], obs.top[2]) {
+        let zf = f64::from(z);
+        let d = (c[i2].mz - c[i0].mz) * zf;
+        let sd =
+            (mz_sigma(&c[i0], tol).hypot(mz_sigma(&c[i2], tol)) * zf).hypot(SPACING_MODEL_SIGMA);
+        let term = |x: f64| -0.5 * ((d - x) / sd).powi(2);
+        let (cl, br) = (M2Spacing::Chlorine.delta(), M2Spacing::Bromine.delta());
+        let others =
+            [M2Spacing::Sulfur, M2Spacing::Oxygen, M2Spacing::TwoCarbon13, M2Spacing::Silicon]
+                .map(|s| term(s.delta()))
+                .into_iter()
+                .fold(f64::NEG_INFINITY, f64::max);
+        for r in &mut results {
+            r.1 += match r.0 {
+                Hypothesis::Halogen { n_cl: 0, n_br: 0 } => others,
+                Hypothesis::Halogen { n_cl, n_br } => {
+                    let (wc, wb) = (f64::from(n_cl) * CL_M2_WEIGHT, f64::from(n_br) * BR_M2_WEIGHT);
+                    term((wc * cl + wb * br) / (wc + wb))
+                }
+                Hypothesis::Sulfur(_) => term(M2Spacing::Sulfur.delta()),
+                Hypothesis::Silicon(_) => term(M2Spacing::Silicon.delta()),
+            };
         }
     }
     let max_ll = results.iter().map(|r| r.1).fold(f64::NEG_INFINITY, f64::max);
