@@ -110,7 +110,7 @@ fn main() {
             println!("  [{lo:.1}, {:.1}{}: {ok}/{n}", lo + 0.1, if i == 4 { "]" } else { ")" });
         }
         println!("\nerrors at S/N >= 20 ({}):", by_role_missed.len());
-        for line in by_role_missed.iter().take(40) {
+        for line in by_role_missed.iter().take(400) {
             println!("  {line}");
         }
     }

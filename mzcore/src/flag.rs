@@ -459,4 +459,37 @@ mod tests {
         assert_eq!(MzTolerance::Auto.resolve(ResolutionClass::Unit), Tolerance::Da(0.3));
         assert_eq!(MzTolerance::Da(0.2).resolve(ResolutionClass::High), Tolerance::Da(0.2));
     }
+
+    #[test]
+    fn settings_deserialize_with_defaults_and_reject_unknown_fields() {
+        let s: FlagSettings =
+            serde_json::from_str(r#"{"tolerance": {"ppm": 5.0}, "ion_type": "M+Na"}"#).unwrap();
+        assert_eq!(s.tolerance, MzTolerance::Ppm(5.0));
+        assert_eq!(s.ion_type.as_deref(), Some("M+Na"));
+        assert_eq!(s.min_snr, FlagSettings::default().min_snr);
+        assert!(s.validate().is_ok());
+        let auto: FlagSettings = serde_json::from_str(r#"{"tolerance": "auto"}"#).unwrap();
+        assert_eq!(auto.tolerance, MzTolerance::Auto);
+        assert!(serde_json::from_str::<FlagSettings>(r#"{"min_sn": 3}"#).is_err());
+        let back: FlagSettings =
+            serde_json::from_str(&serde_json::to_string(&FlagSettings::default()).unwrap()).unwrap();
+        assert_eq!(back, FlagSettings::default());
+    }
+
+    #[test]
+    fn empty_and_unsorted_inputs() {
+        let meta = SpectrumMeta { ms_level: 1, ..Default::default() };
+        let s = FlagSettings::default();
+        let empty = flag_spectrum(&meta, &[], ResolutionClass::High, &s);
+        assert!(!empty.has_halogen && empty.ions.is_empty() && empty.clusters == 0);
+        // A Br1 pair (81Br/79Br 0.973, IUPAC 2013 abundances) in reverse order is still found;
+        // with unknown ionization the parity stays undecided.
+        let c = |mz: f64, i: f64| Centroid { mz, intensity: i, area: i, snr: i / 10.0, fwhm: 0.6 };
+        let pair = [c(158.97, 973.0), c(156.97, 1000.0)];
+        let f = flag_spectrum(&meta, &pair, ResolutionClass::Unit, &s);
+        assert!(f.has_halogen, "{f:?}");
+        assert_eq!((f.ions[0].n_cl, f.ions[0].n_br), (0, 1));
+        assert_eq!(f.ions[0].odd_nominal, OddNominal::Undecided);
+        assert_eq!(f.ions[0].spacing, SpacingVerdict::NotUsed);
+    }
 }
