@@ -4,6 +4,10 @@
 //! Spectra come from the deterministic generator of `tests/flag/synth.rs`: 1,500 random
 //! background centroids (S/N 3 + Exp(1.5)) between m/z 50 and ~900 plus eight compounds
 //! (Cl1 to Cl6, Br2, Br4, ClBr, a plain drug and a siloxane) at S/N 20 to 2000.
+//!
+//! Times are CPU time of the benchmark thread (`CLOCK_THREAD_CPUTIME_ID`, through
+//! `iter_custom`), so other load on a shared machine does not inflate them; set
+//! `FLAG_WALL_CLOCK=1` for wall-clock time.
 
 #[path = "../tests/flag/synth.rs"]
 mod synth;
@@ -14,6 +18,7 @@ use mzcore::feature::FeatureBuilder;
 use mzcore::flag::{FlagSettings, flag_spectrum};
 use mzcore::spectrum::{Ionization, Polarity, SpectrumMeta};
 use std::hint::black_box;
+use std::time::{Duration, Instant};
 use synth::{Res, Spec, generate};
 
 const COMPOUNDS: [(&str, &str); 8] = [
@@ -57,6 +62,27 @@ fn spectrum(seed: u64, res: Res, background: usize) -> Vec<Centroid> {
     all
 }
 
+/// Runs `f` `iters` times and returns the thread CPU time (or wall time, see the docs).
+fn timed(iters: u64, mut f: impl FnMut()) -> Duration {
+    let wall = std::env::var_os("FLAG_WALL_CLOCK").is_some_and(|v| v != "0");
+    let cpu = || cpu_time::ThreadTime::try_now().ok().map(|t| t.as_duration());
+    match (wall, cpu()) {
+        (false, Some(t0)) => {
+            for _ in 0..iters {
+                f();
+            }
+            cpu().map_or(Duration::ZERO, |t1| t1.saturating_sub(t0))
+        }
+        _ => {
+            let t0 = Instant::now();
+            for _ in 0..iters {
+                f();
+            }
+            t0.elapsed()
+        }
+    }
+}
+
 fn bench(c: &mut Criterion) {
     let settings = FlagSettings::default();
     let meta = SpectrumMeta {
@@ -75,12 +101,14 @@ fn bench(c: &mut Criterion) {
         eprintln!("{name}: {} centroids per spectrum on average", n / spectra.len());
         group.throughput(Throughput::Elements(n as u64));
         group.bench_function(BenchmarkId::from_parameter(name), |b| {
-            b.iter(|| {
-                let mut flagged = 0;
-                for s in &spectra {
-                    flagged += flag_spectrum(&meta, black_box(s), class, &settings).ions.len();
-                }
-                black_box(flagged)
+            b.iter_custom(|iters| {
+                timed(iters, || {
+                    let mut flagged = 0;
+                    for s in &spectra {
+                        flagged += flag_spectrum(&meta, black_box(s), class, &settings).ions.len();
+                    }
+                    black_box(flagged);
+                })
             })
         });
     }
@@ -94,13 +122,16 @@ fn bench(c: &mut Criterion) {
     let mut group = c.benchmark_group("feature_builder");
     group.throughput(Throughput::Elements(200));
     group.bench_function("200_scans", |b| {
-        b.iter(|| {
-            let mut fb = FeatureBuilder::new(&settings);
-            for i in 0..200 {
-                let m = SpectrumMeta { index: i, rt_min: Some(i as f64 * 0.01), ..meta.clone() };
-                fb.push(&m, &flags[i % 8]);
-            }
-            black_box(fb.finish().len())
+        b.iter_custom(|iters| {
+            timed(iters, || {
+                let mut fb = FeatureBuilder::new(&settings);
+                for i in 0..200 {
+                    let m =
+                        SpectrumMeta { index: i, rt_min: Some(i as f64 * 0.01), ..meta.clone() };
+                    fb.push(&m, &flags[i % 8]);
+                }
+                black_box(fb.finish().len());
+            })
         })
     });
     group.finish();

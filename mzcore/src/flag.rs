@@ -472,7 +472,8 @@ mod tests {
         assert_eq!(auto.tolerance, MzTolerance::Auto);
         assert!(serde_json::from_str::<FlagSettings>(r#"{"min_sn": 3}"#).is_err());
         let back: FlagSettings =
-            serde_json::from_str(&serde_json::to_string(&FlagSettings::default()).unwrap()).unwrap();
+            serde_json::from_str(&serde_json::to_string(&FlagSettings::default()).unwrap())
+                .unwrap();
         assert_eq!(back, FlagSettings::default());
     }
 

@@ -71,6 +71,12 @@ pub struct Shells {
     pub interference: [f64; SHELLS],
     /// ln of the spectrum's highest over lowest centroid height (at least 1).
     pub ln_range: f64,
+    /// ln of `sigma^2` per shell.
+    pub ln_sigma2: [f64; SHELLS],
+    /// ln(1 - interference) per shell.
+    pub ln_clean: [f64; SHELLS],
+    /// ln(interference / ln_range) per shell.
+    pub ln_unrelated: [f64; SHELLS],
 }
 
 /// Spectrum-wide quantities the shells need.
@@ -131,6 +137,9 @@ pub fn collect_shells(
         detect_snr: stats.detect_snr,
         interference: [0.0; SHELLS],
         ln_range: stats.ln_range,
+        ln_sigma2: [0.0; SHELLS],
+        ln_clean: [0.0; SHELLS],
+        ln_unrelated: [0.0; SHELLS],
     };
     s.intensity[0] = m.intensity;
     s.top[0] = Some(mono);
@@ -164,6 +173,12 @@ pub fn collect_shells(
         k += 2;
     }
     s.len = (end + 3).min(len);
+    let ln_ln_range = s.ln_range.ln();
+    for k in 0..s.len {
+        s.ln_sigma2[k] = 2.0 * s.sigma[k].ln();
+        s.ln_clean[k] = (-s.interference[k]).ln_1p();
+        s.ln_unrelated[k] = s.interference[k].max(1e-300).ln() - ln_ln_range;
+    }
     s
 }
 

@@ -293,6 +293,19 @@ struct Fit {
     scale: f64,
 }
 
+/// ln of a variance `s2 (1 + x)` given `ln s2`, cheap when `x` is small.
+#[inline]
+fn ln_var(ln_s2: f64, x: f64) -> f64 {
+    ln_s2 + if x < 1e-4 { x } else { x.ln_1p() }
+}
+
+/// ln(e^a + e^b), skipping the transcendental part when one term dominates.
+#[inline]
+fn log_add(a: f64, b: f64) -> f64 {
+    let d = (a - b).abs();
+    a.max(b) + if d > 30.0 { 0.0 } else { (-d).exp().ln_1p() }
+}
+
 fn fit(obs: &Shells, e: &[f64; SHELLS], d: &[f64; SHELLS], rel: f64) -> Fit {
     let n = obs.len;
     let mut scale = if e[0] > 0.0 { obs.intensity[0] / e[0] } else { obs.intensity[0] };
@@ -300,16 +313,17 @@ fn fit(obs: &Shells, e: &[f64; SHELLS], d: &[f64; SHELLS], rel: f64) -> Fit {
         let (mut num, mut den) = (0.0, 0.0);
         for k in 0..n {
             if obs.intensity[k] > 0.0 {
-                let v =
-                    obs.sigma[k].powi(2) + (rel * scale * e[k]).powi(2) + (scale * d[k]).powi(2);
+                let s2 = obs.sigma[k] * obs.sigma[k];
+                let extra = (rel * scale * e[k]).powi(2) + (scale * d[k]).powi(2);
+                let v = s2 + extra;
                 // Shells above expectation count with the probability that they hold no
                 // unrelated peak (the mixture below), so interference does not pull the scale.
                 let r = obs.intensity[k] - scale * e[k];
                 let w = if r > 0.0 {
-                    let p = obs.interference[k];
-                    let a = -0.5 * (r * r / v + v.ln() + LN_2PI) + (1.0 - p).ln();
-                    let b = p.ln() - r.max(obs.sigma[k]).ln() - obs.ln_range.ln();
-                    1.0 / (1.0 + (b - a).exp())
+                    let a = -0.5 * (r * r / v + ln_var(obs.ln_sigma2[k], extra / s2) + LN_2PI)
+                        + obs.ln_clean[k];
+                    let b = obs.ln_unrelated[k] - r.max(obs.sigma[k]).ln();
+                    if b - a > 30.0 { 0.0 } else { 1.0 / (1.0 + (b - a).exp()) }
                 } else {
                     1.0
                 };
@@ -323,19 +337,21 @@ fn fit(obs: &Shells, e: &[f64; SHELLS], d: &[f64; SHELLS], rel: f64) -> Fit {
     }
     let (mut chi2, mut loglik, mut informative) = (0.0, 0.0, 0);
     for k in 0..n {
-        let v = obs.sigma[k].powi(2) + (rel * scale * e[k]).powi(2) + (scale * d[k]).powi(2);
+        let s2 = obs.sigma[k] * obs.sigma[k];
+        let extra = (rel * scale * e[k]).powi(2) + (scale * d[k]).powi(2);
+        let v = s2 + extra;
+        let lnv = ln_var(obs.ln_sigma2[k], extra / s2);
         let expect = scale * e[k];
         let limit = obs.detect_snr * obs.sigma[k];
-        let gauss = |r: f64| -0.5 * (r * r / v + v.ln() + LN_2PI);
+        let gauss = |r: f64| -0.5 * (r * r / v + lnv + LN_2PI);
         if obs.intensity[k] > 0.0 {
             informative += 1;
             let r = obs.intensity[k] - expect;
             if r > 0.0 {
                 // Signal, or signal plus an unrelated peak (see the module docs).
-                let p = obs.interference[k];
-                let a = gauss(r) + (1.0 - p).ln();
-                let b = p.ln() - r.max(obs.sigma[k]).ln() - obs.ln_range.ln();
-                loglik += a.max(b) + (-(a - b).abs()).exp().ln_1p();
+                let a = gauss(r) + obs.ln_clean[k];
+                let b = obs.ln_unrelated[k] - r.max(obs.sigma[k]).ln();
+                loglik += log_add(a, b);
                 chi2 += (r * r / v).min(EXCESS_CAP);
             } else {
                 loglik += gauss(r);
@@ -547,10 +563,17 @@ pub fn score(
         }
     }
     // Best and second best; ties broken by the order of evaluation (deterministic).
-    let mut order: Vec<usize> = (0..results.len()).collect();
-    order.sort_by(|&a, &b| results[b].1.total_cmp(&results[a].1).then(a.cmp(&b)));
-    let b = &results[order[0]];
-    let s = order.get(1).map(|&i| &results[i]);
+    let (mut first, mut second): (usize, Option<usize>) = (0, None);
+    for i in 1..results.len() {
+        if results[i].1 > results[first].1 {
+            second = Some(first);
+            first = i;
+        } else if second.is_none_or(|j| results[i].1 > results[j].1) {
+            second = Some(i);
+        }
+    }
+    let b = &results[first];
+    let s = second.map(|i| &results[i]);
     let best_p = (b.1 - max_ll).exp() / total;
     let p_halogen = p_hal / total;
     let dof = b.2.informative.saturating_sub(1).max(1);
@@ -560,11 +583,15 @@ pub fn score(
         _ => (0, 0),
     };
     // Halogen counts for the spacing test: the best halogen hypothesis.
-    let (hc, hb) = order
+    let (hc, hb) = results
         .iter()
-        .map(|&i| results[i].0)
-        .find_map(|h| match h {
-            Hypothesis::Halogen { n_cl, n_br } if n_cl + n_br > 0 => Some((n_cl, n_br)),
+        .filter(|r| r.0.is_halogen())
+        .fold(None, |best: Option<&(Hypothesis, f64, Fit, [f64; SHELLS])>, r| match best {
+            Some(b) if b.1 >= r.1 => Some(b),
+            _ => Some(r),
+        })
+        .and_then(|r| match r.0 {
+            Hypothesis::Halogen { n_cl, n_br } => Some((n_cl, n_br)),
             _ => None,
         })
         .unwrap_or((1, 0));
