@@ -49,6 +49,9 @@
 //! and only those within 20 log-likelihood units of the best there are fitted in full (the
 //! others would have posteriors below e^-20 unless the heavier shells reversed the order).
 //!
+//! A halogen flag needs a centroid in the M+2 shell: without one, Cl1 and Cl0Br0 cannot be
+//! told apart at low S/N, and only those two are scored.
+//!
 //! When even the upper end of the observed M+2/M (plus three sigma) stays below 0.12 (one
 //! chlorine alone gives 0.32 and every Cl/Br hypothesis more; S3+ and Si3+ look-alikes give
 //! more than 0.12 and are scored in full), only `Cl0Br0` and `Cl1Br0`
@@ -81,7 +84,7 @@ use serde::Serialize;
 
 use crate::centroid::Centroid;
 use crate::chem::elements::{element, isotope_mass};
-use crate::chem::halogen::{ClusterModel, M2Spacing, MAX_BR, MAX_CL, SHELLS};
+use crate::chem::halogen::{ClusterModel, M2Spacing, MASS_STEP, MAX_BR, MAX_CL, SHELLS};
 
 use super::FlagSettings;
 use super::cluster::Shells;
@@ -229,6 +232,46 @@ struct Decoys {
     poly: Array2<f64>,
     s32: f64,
     si28: f64,
+    cl35: f64,
+    br79: f64,
+}
+
+/// Reads the first shells of the cluster model for one ion mass: the same linear
+/// interpolation between mass bins as [`ClusterModel::expected`], on the shells needed only.
+struct Lookup<'a> {
+    mean: &'a [f32],
+    spread: &'a [f32],
+    i0: usize,
+    t: f32,
+}
+
+impl<'a> Lookup<'a> {
+    const STRIDE_BIN: usize = (MAX_CL + 1) * (MAX_BR + 1) * SHELLS;
+
+    fn new(model: &'a ClusterModel, mass: f64) -> Lookup<'a> {
+        let bins = model.mean_table().shape()[0];
+        let x = (mass.max(0.0) / MASS_STEP).min((bins - 1) as f64);
+        let b0 = (x.floor() as usize).min(bins - 2);
+        Lookup {
+            mean: model.mean_table().as_slice().expect("standard layout"),
+            spread: model.spread_table().as_slice().expect("standard layout"),
+            i0: b0 * Self::STRIDE_BIN,
+            t: (x - b0 as f64) as f32,
+        }
+    }
+
+    fn get(&self, n_cl: usize, n_br: usize, len: usize) -> ([f64; SHELLS], [f64; SHELLS]) {
+        let i = self.i0 + (n_cl * (MAX_BR + 1) + n_br) * SHELLS;
+        let j = i + Self::STRIDE_BIN;
+        let (mut e, mut d) = ([0.0; SHELLS], [0.0; SHELLS]);
+        for k in 0..len.min(SHELLS) {
+            let (m0, m1) = (self.mean[i + k], self.mean[j + k]);
+            let (s0, s1) = (self.spread[i + k], self.spread[j + k]);
+            e[k] = f64::from(m0 + self.t * (m1 - m0));
+            d[k] = f64::from(s0 + self.t * (s1 - s0));
+        }
+        (e, d)
+    }
 }
 
 fn decoys() -> &'static Decoys {
@@ -274,6 +317,8 @@ fn decoys() -> &'static Decoys {
             poly,
             s32: isotope_mass("S", 32).expect("32S"),
             si28: isotope_mass("Si", 28).expect("28Si"),
+            cl35: isotope_mass("Cl", 35).expect("35Cl"),
+            br79: isotope_mass("Br", 79).expect("79Br"),
         }
     })
 }
@@ -295,15 +340,15 @@ struct Fit {
 
 /// ln of a variance `s2 (1 + x)` given `ln s2`, cheap when `x` is small.
 #[inline]
-fn ln_var(ln_s2: f64, x: f64) -> f64 {
-    ln_s2 + if x < 1e-4 { x } else { x.ln_1p() }
+fn ln_var(ln_s2: f64, s2: f64, x: f64) -> f64 {
+    if x < 1e-4 { ln_s2 + x } else { (s2 * (1.0 + x)).ln() }
 }
 
 /// ln(e^a + e^b), skipping the transcendental part when one term dominates.
 #[inline]
 fn log_add(a: f64, b: f64) -> f64 {
     let d = (a - b).abs();
-    a.max(b) + if d > 30.0 { 0.0 } else { (-d).exp().ln_1p() }
+    a.max(b) + if d > 30.0 { 0.0 } else { (1.0 + (-d).exp()).ln() }
 }
 
 fn fit(obs: &Shells, e: &[f64; SHELLS], d: &[f64; SHELLS], rel: f64) -> Fit {
@@ -320,7 +365,7 @@ fn fit(obs: &Shells, e: &[f64; SHELLS], d: &[f64; SHELLS], rel: f64) -> Fit {
                 // unrelated peak (the mixture below), so interference does not pull the scale.
                 let r = obs.intensity[k] - scale * e[k];
                 let w = if r > 0.0 {
-                    let a = -0.5 * (r * r / v + ln_var(obs.ln_sigma2[k], extra / s2) + LN_2PI)
+                    let a = -0.5 * (r * r / v + ln_var(obs.ln_sigma2[k], s2, extra / s2) + LN_2PI)
                         + obs.ln_clean[k];
                     let b = obs.ln_unrelated[k] - r.max(obs.sigma[k]).ln();
                     if b - a > 30.0 { 0.0 } else { 1.0 / (1.0 + (b - a).exp()) }
@@ -340,7 +385,7 @@ fn fit(obs: &Shells, e: &[f64; SHELLS], d: &[f64; SHELLS], rel: f64) -> Fit {
         let s2 = obs.sigma[k] * obs.sigma[k];
         let extra = (rel * scale * e[k]).powi(2) + (scale * d[k]).powi(2);
         let v = s2 + extra;
-        let lnv = ln_var(obs.ln_sigma2[k], extra / s2);
+        let lnv = ln_var(obs.ln_sigma2[k], s2, extra / s2);
         let expect = scale * e[k];
         let limit = obs.detect_snr * obs.sigma[k];
         let gauss = |r: f64| -0.5 * (r * r / v + lnv + LN_2PI);
@@ -443,7 +488,8 @@ pub fn score(
     let mass = mz * f64::from(z);
     let rel = settings.relative_error;
     let o0 = obs.intensity[0];
-    let quick = obs.len <= 2 || obs.intensity[2] + 3.0 * obs.sigma[2] < QUICK_M2_RATIO * o0;
+    let no_m2 = obs.len <= 2 || obs.intensity[2] <= 0.0;
+    let quick = no_m2 || obs.intensity[2] + 3.0 * obs.sigma[2] < QUICK_M2_RATIO * o0;
 
     // Collect the hypotheses with their log-priors, expected shells and spreads.
     let mut cands: Vec<(Hypothesis, f64, [f64; SHELLS], [f64; SHELLS])> = Vec::with_capacity(80);
@@ -457,29 +503,20 @@ pub fn score(
     };
     // Only the shells looked at matter.
     let n = obs.len.max(5);
-    let to64 = |a: &[f32; SHELLS]| {
-        let mut o = [0.0f64; SHELLS];
-        for (x, &y) in o.iter_mut().zip(a).take(n) {
-            *x = f64::from(y);
-        }
-        o
-    };
     let (max_cl, max_br) = if quick { (1, 0) } else { (MAX_CL, MAX_BR) };
-    for n in 0..=max_cl {
-        for m in 0..=max_br {
-            let Some(e) = model.expected(mass, 1, n, m) else { continue };
-            if !e.feasible {
+    let dec = decoys();
+    let table = Lookup::new(model, mass);
+    for nc in 0..=max_cl {
+        for nb in 0..=max_br {
+            // The model's feasibility rule (Cl and Br alone no heavier than the ion).
+            if mass < nc as f64 * dec.cl35 + nb as f64 * dec.br79 {
                 continue;
             }
-            push(
-                Hypothesis::Halogen { n_cl: n as u8, n_br: m as u8 },
-                to64(&e.shells),
-                to64(&e.spread),
-            );
+            let (e, d) = table.get(nc, nb, n);
+            push(Hypothesis::Halogen { n_cl: nc as u8, n_br: nb as u8 }, e, d);
         }
     }
     if !quick {
-        let dec = decoys();
         let kinds =
             SULFUR_COUNTS.iter().map(|&k| (Hypothesis::Sulfur(k), f64::from(k) * dec.s32)).chain(
                 SILICON_COUNTS.iter().map(|&k| (Hypothesis::Silicon(k), f64::from(k) * dec.si28)),
@@ -492,11 +529,11 @@ pub fn score(
             if min_mass > mass + 0.5 {
                 continue;
             }
-            let Some(bg) = model.expected(mass - light, 1, 0, 0) else { continue };
+            let (bg, bs) = Lookup::new(model, mass - light).get(0, 0, n);
             let p = dec.poly.row(row);
             let (mut e, mut d) = ([0.0f64; SHELLS], [0.0f64; SHELLS]);
             for i in 0..n {
-                let (b, s) = (f64::from(bg.shells[i]), f64::from(bg.spread[i]));
+                let (b, s) = (bg[i], bs[i]);
                 if b == 0.0 && s == 0.0 {
                     continue;
                 }
@@ -602,7 +639,9 @@ pub fn score(
     }
     let ratio = |k: usize| if obs.len > k && o0 > 0.0 { obs.intensity[k] / o0 } else { 0.0 };
     let expect = |k: usize| if b.3[0] > 0.0 { b.3[k] / b.3[0] } else { 0.0 };
-    let (halogen, reason) = if !b.0.is_halogen() {
+    let (halogen, reason) = if no_m2 {
+        (false, "no M+2 peak")
+    } else if !b.0.is_halogen() {
         (false, "best hypothesis has no Cl or Br")
     } else if p_halogen < settings.min_halogen_probability {
         (false, "halogen probability below threshold")
@@ -645,6 +684,21 @@ mod tests {
         let si1 = d.poly.row(SULFUR_COUNTS.len());
         assert!((si1[1] - 0.04685).abs() < 1e-4 && (si1[2] - 0.03092).abs() < 1e-4);
         assert!(d.poly.rows().into_iter().all(|r| (r.sum() - 1.0).abs() < 1e-9));
+    }
+
+    #[test]
+    fn lookup_matches_the_model() {
+        let model = ClusterModel::global();
+        for mass in [0.0, 37.5, 296.02, 2999.0, 5000.0] {
+            for (n, m) in [(0, 0), (3, 0), (2, 1), (8, 6)] {
+                let want = model.expected(mass, 1, n, m).unwrap();
+                let (e, d) = Lookup::new(model, mass).get(n, m, SHELLS);
+                for k in 0..SHELLS {
+                    assert_eq!(e[k], f64::from(want.shells[k]), "{mass} {n} {m} {k}");
+                    assert_eq!(d[k], f64::from(want.spread[k]));
+                }
+            }
+        }
     }
 
     #[test]
