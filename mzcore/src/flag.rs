@@ -137,7 +137,7 @@ pub struct FlagSettings {
     /// Relative intensity error of isotope peaks beyond the noise (default 0.05).
     pub relative_error: f64,
     /// EI molecular-ion candidates: the highest cluster whose most intense peak reaches this
-    /// fraction of the base peak (default 0.02).
+    /// fraction of the base peak (default 0.05).
     pub ei_min_relative: f64,
     /// Features: minimum number of scans (default 3).
     pub feature_min_scans: usize,
@@ -155,7 +155,7 @@ impl Default for FlagSettings {
             min_halogen_probability: 0.5,
             max_misfit: 6.0,
             relative_error: 0.05,
-            ei_min_relative: 0.02,
+            ei_min_relative: 0.05,
             feature_min_scans: 3,
             feature_max_gap: 1,
         }
