@@ -17,11 +17,14 @@
 //! 2. **Halogen assignment** ([`halogen`]): the observed shells are scored against the
 //!    chemistry core's expected Cl_n Br_m clusters (n 0..=8, m 0..=6,
 //!    [`crate::chem::halogen::expected`]) and against sulfur (S2..S8) and silicon (Si1..Si8)
-//!    look-alikes. The score is a posterior probability under a flat prior over the feasible
-//!    hypotheses and the error model documented in [`halogen`]. At high resolution the M+2
+//!    look-alikes. The score is a posterior probability under the prior and error model
+//!    documented in [`halogen`]. At high resolution the M+2
 //!    spacing is compared with 37Cl-35Cl / 81Br-79Br and with 34S, 30Si, 18O and 13C2; a
 //!    spacing that matches a look-alike and not the halogen vetoes the flag. At unit
 //!    resolution only intensities are used and every ion says so ([`SpacingVerdict::NotUsed`]).
+//!    Also at high resolution, a flagged ion must have a mass defect that a molecule with the
+//!    assigned Cl/Br can have ([`nitrogen::defect_plausible`]); this rejects chance pairs of
+//!    unrelated peaks and elemental sulfur (S8, defect -0.22).
 //! 3. **Nitrogen rule** ([`nitrogen`]): the ion type comes from the ionization (EI gives
 //!    M+., electrospray / APCI / APPI / CI positive [M+H]+, negative [M-H]-) unless
 //!    [`FlagSettings::ion_type`] overrides it; the neutral nominal mass is computed with the
@@ -125,7 +128,8 @@ pub struct FlagSettings {
     /// [`IonType::parse`] (`M+.`, `[M+H]+`, ...); `None` (default) takes it from the
     /// spectrum's ionization and polarity.
     pub ion_type: Option<String>,
-    /// Minimum posterior probability that a cluster carries Cl or Br (default 0.95).
+    /// Minimum posterior probability that a cluster carries Cl or Br (default 0.5: halogen
+    /// more likely than not; raise it for fewer, surer flags).
     pub min_halogen_probability: f64,
     /// Largest chi-square per degree of freedom of the best hypothesis for a cluster to count
     /// as a cluster at all (default 6).
@@ -133,7 +137,7 @@ pub struct FlagSettings {
     /// Relative intensity error of isotope peaks beyond the noise (default 0.05).
     pub relative_error: f64,
     /// EI molecular-ion candidates: the highest cluster whose most intense peak reaches this
-    /// fraction of the base peak (default 0.02).
+    /// fraction of the base peak (default 0.05).
     pub ei_min_relative: f64,
     /// Features: minimum number of scans (default 3).
     pub feature_min_scans: usize,
@@ -148,10 +152,10 @@ impl Default for FlagSettings {
             min_snr: 10.0,
             max_charge: 3,
             ion_type: None,
-            min_halogen_probability: 0.95,
+            min_halogen_probability: 0.5,
             max_misfit: 6.0,
             relative_error: 0.05,
-            ei_min_relative: 0.02,
+            ei_min_relative: 0.05,
             feature_min_scans: 3,
             feature_max_gap: 1,
         }
@@ -318,19 +322,52 @@ pub fn flag_spectrum(
     let clusters = cluster::find_clusters(centroids, tolerance, high, settings);
     let ion_type = nitrogen::ion_type_for(meta, settings);
     let mut out = SpectrumFlags { clusters: clusters.len(), ..Default::default() };
+    let unc_at = |mz: f64| if high { tolerance.at(mz) } else { 0.15 };
     let molecular = if meta.ms_level <= 1 {
-        nitrogen::molecular_candidate(meta, centroids, &clusters, &ion_type, settings)
+        let plausible: Vec<bool> = clusters
+            .iter()
+            .map(|c| {
+                let mz = centroids[c.mono].mz;
+                let s = &c.score;
+                !high
+                    || nitrogen::defect_plausible(
+                        mz,
+                        c.charge,
+                        &ion_type,
+                        s.n_cl,
+                        s.n_br,
+                        unc_at(mz),
+                    )
+            })
+            .collect();
+        nitrogen::molecular_candidate(centroids, &clusters, &plausible, &ion_type, settings)
     } else {
         None
     };
     let ei = nitrogen::is_ei(&ion_type);
     for (i, c) in clusters.iter().enumerate() {
         let is_mol = molecular == Some(i);
-        if !(c.score.halogen || is_mol) {
+        let mono = &centroids[c.mono];
+        let mut s = c.score.clone();
+        // High resolution: a Cl/Br-bearing ion needs a plausible mass defect.
+        if s.halogen
+            && high
+            && !nitrogen::defect_plausible(
+                mono.mz,
+                c.charge,
+                &ion_type,
+                s.n_cl,
+                s.n_br,
+                unc_at(mono.mz),
+            )
+        {
+            s.halogen = false;
+            s.reason = "mass defect implausible for the Cl/Br assignment";
+        }
+        if !(s.halogen || is_mol) {
             continue;
         }
-        let mono = &centroids[c.mono];
-        let unc = if high { tolerance.at(mono.mz) } else { 0.15 };
+        let unc = unc_at(mono.mz);
         let (nominal_mass, odd_nominal, parity_reason) = if ei && !is_mol {
             (
                 None,
@@ -338,7 +375,7 @@ pub fn flag_spectrum(
                 "EI fragment: the nitrogen rule applies to the molecular ion".to_string(),
             )
         } else {
-            nitrogen::nominal(mono.mz, c.charge, &ion_type, c.score.n_cl, c.score.n_br, unc)
+            nitrogen::nominal(mono.mz, c.charge, &ion_type, s.n_cl, s.n_br, unc)
         };
         let sign = ion_type.as_ref().map_or(
             match meta.polarity {
@@ -347,7 +384,6 @@ pub fn flag_spectrum(
             },
             |t| t.charge().signum(),
         );
-        let s = &c.score;
         out.ions.push(FlaggedIon {
             scan: meta.index,
             spectrum_id: meta.id.clone(),
@@ -422,5 +458,39 @@ mod tests {
         assert_eq!(MzTolerance::Auto.resolve(ResolutionClass::High), Tolerance::Ppm(10.0));
         assert_eq!(MzTolerance::Auto.resolve(ResolutionClass::Unit), Tolerance::Da(0.3));
         assert_eq!(MzTolerance::Da(0.2).resolve(ResolutionClass::High), Tolerance::Da(0.2));
+    }
+
+    #[test]
+    fn settings_deserialize_with_defaults_and_reject_unknown_fields() {
+        let s: FlagSettings =
+            serde_json::from_str(r#"{"tolerance": {"ppm": 5.0}, "ion_type": "M+Na"}"#).unwrap();
+        assert_eq!(s.tolerance, MzTolerance::Ppm(5.0));
+        assert_eq!(s.ion_type.as_deref(), Some("M+Na"));
+        assert_eq!(s.min_snr, FlagSettings::default().min_snr);
+        assert!(s.validate().is_ok());
+        let auto: FlagSettings = serde_json::from_str(r#"{"tolerance": "auto"}"#).unwrap();
+        assert_eq!(auto.tolerance, MzTolerance::Auto);
+        assert!(serde_json::from_str::<FlagSettings>(r#"{"min_sn": 3}"#).is_err());
+        let back: FlagSettings =
+            serde_json::from_str(&serde_json::to_string(&FlagSettings::default()).unwrap())
+                .unwrap();
+        assert_eq!(back, FlagSettings::default());
+    }
+
+    #[test]
+    fn empty_and_unsorted_inputs() {
+        let meta = SpectrumMeta { ms_level: 1, ..Default::default() };
+        let s = FlagSettings::default();
+        let empty = flag_spectrum(&meta, &[], ResolutionClass::High, &s);
+        assert!(!empty.has_halogen && empty.ions.is_empty() && empty.clusters == 0);
+        // A Br1 pair (81Br/79Br 0.973, IUPAC 2013 abundances) in reverse order is still found;
+        // with unknown ionization the parity stays undecided.
+        let c = |mz: f64, i: f64| Centroid { mz, intensity: i, area: i, snr: i / 10.0, fwhm: 0.6 };
+        let pair = [c(158.97, 973.0), c(156.97, 1000.0)];
+        let f = flag_spectrum(&meta, &pair, ResolutionClass::Unit, &s);
+        assert!(f.has_halogen, "{f:?}");
+        assert_eq!((f.ions[0].n_cl, f.ions[0].n_br), (0, 1));
+        assert_eq!(f.ions[0].odd_nominal, OddNominal::Undecided);
+        assert_eq!(f.ions[0].spacing, SpacingVerdict::NotUsed);
     }
 }

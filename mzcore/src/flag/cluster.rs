@@ -10,10 +10,13 @@
 //!   chance coincidences with unrelated peaks rare. At unit resolution z = 1 (partners 0.5 u
 //!   apart are not resolved reliably);
 //! - **shells**: shell k collects every centroid with m/z in
-//!   `[mono + k x 0.99785 / z - tol, mono + k x 1.00336 / z + tol]` (34S/2 and 13C bound
-//!   the per-shell mass step of C, H, N, O, S, Cl and Br isotopologues; 37Cl and 81Br steps
-//!   are 0.99853 and 0.99898 per shell), summed, with the most intense one kept for the
-//!   spacing test;
+//!   `[mono + k x 0.99785 / z - tol, mono + hi_k / z + tol]`, summed, with the most intense
+//!   one kept for the spacing test. 34S/2 (0.99790 per shell) bounds the step from below;
+//!   `hi_k` is `k x 1.00336` (13C) for k <= 2 and `(k - 2) x 0.998975 + 2 x 1.00336` beyond
+//!   (81Br steps plus at most two 13C), which keeps high-resolution windows of heavy shells
+//!   narrow so that unrelated peaks rarely fall into them. The cluster ends after the last
+//!   even shell reached from M+2 without a gap; one odd and one even shell beyond that end
+//!   are kept (a missing peak there is evidence against hypotheses expecting more);
 //! - **scoring** by [`super::halogen::score`]; when the best hypothesis fits
 //!   (misfit at most [`FlagSettings::max_misfit`]), the cluster is kept and its partner peaks
 //!   (shells 1 and up whose expected height is above the detection limit and whose observed
@@ -31,6 +34,8 @@ use super::halogen::{self, Score};
 pub const C13_DELTA: f64 = 1.003_354_84;
 /// Smallest per-shell mass step considered (34S - 32S over two shells), u.
 pub const MIN_SHELL_STEP: f64 = 0.997_85;
+/// 81Br - 79Br over two shells, u.
+pub const BR_SHELL_STEP: f64 = 0.998_975;
 
 /// One observed cluster.
 #[derive(Debug, Clone)]
@@ -61,6 +66,46 @@ pub struct Shells {
     pub top: [Option<usize>; SHELLS],
     /// Detection limit in S/N (smallest S/N in the centroid list, at least 1).
     pub detect_snr: f64,
+    /// Prior probability that an unrelated centroid falls into each shell window (centroid
+    /// density of the spectrum times the window width, 0.005 to 0.5).
+    pub interference: [f64; SHELLS],
+    /// ln of the spectrum's highest over lowest centroid height (at least 1).
+    pub ln_range: f64,
+    /// ln of `sigma^2` per shell.
+    pub ln_sigma2: [f64; SHELLS],
+    /// ln(1 - interference) per shell.
+    pub ln_clean: [f64; SHELLS],
+    /// ln(interference / ln_range) per shell.
+    pub ln_unrelated: [f64; SHELLS],
+}
+
+/// Spectrum-wide quantities the shells need.
+#[derive(Debug, Clone, Copy)]
+pub struct SpectrumStats {
+    /// Detection limit in S/N.
+    pub detect_snr: f64,
+    /// Centroids per u.
+    pub density: f64,
+    /// ln(max height / min height), at least 1.
+    pub ln_range: f64,
+}
+
+impl SpectrumStats {
+    /// Computes the statistics of a centroid list sorted by m/z.
+    pub fn of(c: &[Centroid]) -> SpectrumStats {
+        let detect = c.iter().map(|p| p.snr).filter(|&s| s > 0.0).fold(f64::INFINITY, f64::min);
+        let detect_snr = if detect.is_finite() { detect.clamp(1.0, 10.0) } else { 3.0 };
+        let (lo, hi) = c
+            .iter()
+            .filter(|p| p.intensity > 0.0)
+            .fold((f64::INFINITY, 0.0f64), |(a, b), p| (a.min(p.intensity), b.max(p.intensity)));
+        let ln_range = if hi > 0.0 { (hi / lo).ln().max(1.0) } else { 1.0 };
+        let span = match (c.first(), c.last()) {
+            (Some(a), Some(b)) => (b.mz - a.mz).max(1.0),
+            _ => 1.0,
+        };
+        SpectrumStats { detect_snr, density: c.len() as f64 / span, ln_range }
+    }
 }
 
 /// Noise sigma of a centroid (height over S/N), or `None` when S/N is not positive.
@@ -80,25 +125,28 @@ pub fn collect_shells(
     z: u8,
     tol: f64,
     len: usize,
-    detect_snr: f64,
+    stats: &SpectrumStats,
 ) -> Shells {
     let m = &c[mono];
-    let zf = f64::from(z);
     let noise = sigma_of(m).unwrap_or(m.intensity.max(1e-12) / 10.0);
     let mut s = Shells {
         len,
         intensity: [0.0; SHELLS],
         sigma: [noise; SHELLS],
         top: [None; SHELLS],
-        detect_snr,
+        detect_snr: stats.detect_snr,
+        interference: [0.0; SHELLS],
+        ln_range: stats.ln_range,
+        ln_sigma2: [0.0; SHELLS],
+        ln_clean: [0.0; SHELLS],
+        ln_unrelated: [0.0; SHELLS],
     };
     s.intensity[0] = m.intensity;
     s.top[0] = Some(mono);
     let mut j = mono + 1;
     for k in 1..len {
-        let kf = k as f64;
-        let lo = m.mz + kf * MIN_SHELL_STEP / zf - tol;
-        let hi = m.mz + kf * C13_DELTA / zf + tol;
+        let (lo, hi) = window(m.mz, k, z, tol);
+        s.interference[k] = (stats.density * (hi - lo)).clamp(0.005, 0.5);
         // Unit-resolution windows may overlap: search from the previous window's start.
         j = lower_bound(c, j, lo);
         let mut best = 0.0;
@@ -115,16 +163,36 @@ pub fn collect_shells(
             i += 1;
         }
     }
+    // The cluster ends after the last even shell reached without a gap (see the module
+    // docs); one odd and one even shell beyond it stay in, so that hypotheses expecting more
+    // are penalised by the missing peaks.
+    let mut end = 0;
+    let mut k = 2;
+    while k < len && s.intensity[k] > 0.0 {
+        end = k;
+        k += 2;
+    }
+    s.len = (end + 3).min(len);
+    let ln_ln_range = s.ln_range.ln();
+    for k in 0..s.len {
+        s.ln_sigma2[k] = 2.0 * s.sigma[k].ln();
+        s.ln_clean[k] = (-s.interference[k]).ln_1p();
+        s.ln_unrelated[k] = s.interference[k].max(1e-300).ln() - ln_ln_range;
+    }
     s
+}
+
+/// Shell `k` window above a monoisotopic peak at `mono` for charge `z` (see the module docs).
+pub fn window(mono: f64, k: usize, z: u8, tol: f64) -> (f64, f64) {
+    let kf = k as f64;
+    let zf = f64::from(z);
+    let top = if k <= 2 { kf * C13_DELTA } else { (kf - 2.0) * BR_SHELL_STEP + 2.0 * C13_DELTA };
+    (mono + kf * MIN_SHELL_STEP / zf - tol, mono + top / zf + tol)
 }
 
 /// True when the window of shell `k` for charge `z` holds a peak of at least `min` height.
 fn window_has(c: &[Centroid], mono: usize, z: u8, k: usize, tol: f64, min: f64) -> bool {
-    let m = c[mono].mz;
-    let kf = k as f64;
-    let zf = f64::from(z);
-    let lo = m + kf * MIN_SHELL_STEP / zf - tol;
-    let hi = m + kf * C13_DELTA / zf + tol;
+    let (lo, hi) = window(c[mono].mz, k, z, tol);
     let mut i = lower_bound(c, mono + 1, lo);
     while i < c.len() && c[i].mz <= hi {
         if c[i].intensity >= min {
@@ -156,8 +224,7 @@ pub fn find_clusters(
     high: bool,
     settings: &FlagSettings,
 ) -> Vec<Cluster> {
-    let detect_snr = c.iter().map(|p| p.snr).filter(|&s| s > 0.0).fold(f64::INFINITY, f64::min);
-    let detect_snr = if detect_snr.is_finite() { detect_snr.clamp(1.0, 10.0) } else { 3.0 };
+    let stats = SpectrumStats::of(c);
     let mut consumed = vec![false; c.len()];
     let mut out = Vec::new();
     for mono in 0..c.len() {
@@ -168,7 +235,7 @@ pub fn find_clusters(
         let tol = tolerance.at(m.mz);
         let z = if high { detect_charge(c, mono, tol, settings.max_charge) } else { 1 };
         let shells_len = halogen::shells_needed(m.mz * f64::from(z));
-        let shells = collect_shells(c, mono, z, tol, shells_len, detect_snr);
+        let shells = collect_shells(c, mono, z, tol, shells_len, &stats);
         let score = halogen::score(c, &shells, m.mz, z, high, tol, settings);
         if !(score.misfit <= settings.max_misfit) {
             continue;
@@ -181,10 +248,7 @@ pub fn find_clusters(
                 continue;
             }
             if shells.intensity[k] <= 2.0 * expect + 3.0 * shells.sigma[k] {
-                let kf = k as f64;
-                let zf = f64::from(z);
-                let lo = m.mz + kf * MIN_SHELL_STEP / zf - tol;
-                let hi = m.mz + kf * C13_DELTA / zf + tol;
+                let (lo, hi) = window(m.mz, k, z, tol);
                 let mut i = lower_bound(c, mono + 1, lo);
                 while i < c.len() && c[i].mz <= hi {
                     consumed[i] = true;
@@ -216,7 +280,7 @@ mod tests {
             peak(302.00671, 10.0),
             peak(303.0, 30.0),
         ];
-        let s = collect_shells(&c, 0, 1, 0.003, 5, 3.0);
+        let s = collect_shells(&c, 0, 1, 0.003, 5, &SpectrumStats::of(&c));
         assert_eq!(s.intensity[2], 330.0);
         assert_eq!(s.top[2], Some(2));
         assert_eq!(s.intensity[3], 30.0);

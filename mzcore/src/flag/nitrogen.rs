@@ -23,6 +23,10 @@
 //!    nominal masses, within 0.5 u), the candidate is that loss's fragment and the higher
 //!    cluster becomes the candidate; repeat until no such cluster is left.
 //!
+//! At high resolution only clusters with a plausible mass defect take part
+//! ([`defect_plausible`]: a lone peak at m/z 142.56 is no molecular ion of an organic
+//! compound).
+//!
 //! Other clusters of an EI spectrum are treated as fragments (parity undecided). For other
 //! ionizations every flagged ion is taken as a (pseudo)molecular ion, and the spectrum's
 //! candidate is its most intense cluster.
@@ -136,10 +140,9 @@ pub fn nominal(
     if r < 0.0 {
         return (None, OddNominal::Undecided, "halogen count heavier than the ion".into());
     }
-    let x = r - DEFECT_PER_U * r;
+    let (x, margin) = corrected(r, z, mz_uncertainty);
     let rounded = x.round();
     let frac = (x - rounded).abs();
-    let margin = 0.05 + DEFECT_SPREAD_PER_U * r + mz_uncertainty * f64::from(z);
     let nominal = 35 * i64::from(n_cl) + 79 * i64::from(n_br) + rounded as i64;
     if frac > 0.5 - margin {
         return (
@@ -155,11 +158,36 @@ pub fn nominal(
     (Some(nominal), call, reason)
 }
 
+/// The non-halogen mass with its estimated defect removed, and the rounding margin.
+fn corrected(r: f64, z: u8, mz_uncertainty: f64) -> (f64, f64) {
+    (r - DEFECT_PER_U * r, 0.05 + DEFECT_SPREAD_PER_U * r + mz_uncertainty * f64::from(z))
+}
+
+/// True when the ion's mass defect is plausible for a molecule of C, H, N, O with the
+/// assigned Cl/Br and a few S, P or F atoms: after the correction, within the rounding
+/// margin plus 0.1 u of an integer (see the module docs).
+pub fn defect_plausible(
+    mz: f64,
+    z: u8,
+    ion: &Option<IonType>,
+    n_cl: u8,
+    n_br: u8,
+    mz_uncertainty: f64,
+) -> bool {
+    let Some(ion) = ion else { return true };
+    let Ok(m) = neutral_mass(mz, z, ion) else { return true };
+    let cl = isotope_mass("Cl", 35).expect("35Cl");
+    let br = isotope_mass("Br", 79).expect("79Br");
+    let r = m - f64::from(n_cl) * cl - f64::from(n_br) * br;
+    let (x, margin) = corrected(r.max(0.0), z, mz_uncertainty);
+    (x - x.round()).abs() <= margin + 0.1
+}
+
 /// Index of the spectrum's molecular-ion candidate among `clusters` (see the module docs).
 pub fn molecular_candidate(
-    _meta: &SpectrumMeta,
     centroids: &[Centroid],
     clusters: &[Cluster],
+    plausible: &[bool],
     ion: &Option<IonType>,
     settings: &FlagSettings,
 ) -> Option<usize> {
@@ -177,16 +205,18 @@ pub fn molecular_candidate(
     let base = centroids.iter().map(|c| c.intensity).fold(0.0, f64::max);
     let threshold = settings.ei_min_relative * base;
     let mass = |c: &Cluster| centroids[c.mono].mz * f64::from(c.charge);
-    let mut cand = clusters.iter().rposition(|c| c.apex >= threshold)?;
+    let mut cand =
+        (0..clusters.len()).rev().find(|&i| clusters[i].apex >= threshold && plausible[i])?;
     loop {
         let m = mass(&clusters[cand]);
         let higher = clusters
             .iter()
             .enumerate()
             .skip(cand + 1)
-            .filter(|(_, h)| {
+            .filter(|(i, h)| {
                 let d = mass(h) - m;
-                centroids[h.mono].snr >= settings.min_snr
+                plausible[*i]
+                    && centroids[h.mono].snr >= settings.min_snr
                     && COMMON_LOSSES.iter().any(|&l| (d - l).abs() <= 0.5)
             })
             .map(|(i, _)| i)
