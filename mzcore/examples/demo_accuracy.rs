@@ -48,6 +48,11 @@ fn main() -> Result<(), mzcore::Error> {
         total.precision()
     );
     println!("exact (n_cl, n_br): {} of {} found", total.exact, total.found);
+    println!(
+        "halogenated compounds with a halogen feature on the molecular ion or a fragment at the apex: {} of {}",
+        total.flagged_at_apex,
+        total.found + total.missed
+    );
     println!("other halogen features near halogenated compounds: {}", total.other_halogen_features);
     println!(
         "nitrogen rule: right {}, wrong {}, undecided {}",

