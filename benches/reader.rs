@@ -7,7 +7,8 @@
 //!   intensity (`Spectrum::decode_into`, buffers reused).
 //!
 //! Throughput is in file bytes. Goal: reader at 80 % or more of bare_work's MB/s.
-//! Run: `cargo bench --bench reader` (the file is cached in target/bench-data/).
+//! Run: `cargo bench --bench reader` (the file is cached in target/bench-data/); set
+//! `MZSIFT_BENCH_FILE` to measure another all-zlib file.
 
 // criterion_group! generates an undocumented `pub fn`.
 #![allow(missing_docs)]
@@ -64,7 +65,10 @@ fn reader_decode_all(path: &std::path::Path) -> usize {
 }
 
 fn bench(c: &mut Criterion) {
-    let path = bigfile::cached(200);
+    // MZSIFT_BENCH_FILE points the bench at another file whose every <binary> is zlib
+    // (e.g. a `mzsift demo --spectra N --points M` output); default: the generated 200 MB one.
+    let path =
+        std::env::var_os("MZSIFT_BENCH_FILE").map_or_else(|| bigfile::cached(200), Into::into);
     let bytes = std::fs::metadata(&path).unwrap().len();
     let mut g = c.benchmark_group("reader_200mb");
     g.sample_size(10);
