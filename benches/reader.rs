@@ -1,8 +1,8 @@
 //! Reader throughput on a generated 200 MB file (zlib, 64-bit m/z, 32-bit intensity, 20,000
 //! points per spectrum), one thread, beside the bare work on the same bytes.
 //!
-//! - `bare_work`: read the file, find every `<binary>` with memchr, base64-decode and inflate
-//!   it with the same decoders the reader uses (`binary::bare_decode`); no XML.
+//! - `bare_work`: read the file, find every `<binary>` with memchr, base64-decode it and
+//!   inflate it (when its cvParams name zlib) with the same decoders the reader uses (`binary::bare_decode`); no XML.
 //! - `reader_decode_all`: `mzml::Reader` over the file, every spectrum decoded to `f64` m/z and
 //!   intensity (`Spectrum::decode_into`, buffers reused).
 //!
@@ -32,6 +32,7 @@ fn bare_work(path: &std::path::Path) -> usize {
     let mut total = 0;
     let open = memchr::memmem::Finder::new(b"<binary>");
     let close = memchr::memmem::Finder::new(b"</binary>");
+    let zlib_name = memchr::memmem::Finder::new(b"zlib compression");
     loop {
         let n = file.read(&mut chunk).unwrap();
         if n == 0 {
@@ -42,8 +43,11 @@ fn bare_work(path: &std::path::Path) -> usize {
         while let Some(a) = open.find(&pending[start..]) {
             let text_at = start + a + 8;
             let Some(b) = close.find(&pending[text_at..]) else { break };
+            // Inflate when the array's cvParams (between the previous </binary> and this
+            // <binary>) name a zlib compression; base64 only otherwise.
+            let zlib = zlib_name.find(&pending[start..text_at]).is_some();
             total +=
-                binary::bare_decode(&pending[text_at..text_at + b], true, &mut scratch, &mut out)
+                binary::bare_decode(&pending[text_at..text_at + b], zlib, &mut scratch, &mut out)
                     .unwrap();
             start = text_at + b + 9;
         }
