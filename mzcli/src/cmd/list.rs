@@ -3,6 +3,7 @@
 use std::io::Write;
 use std::path::PathBuf;
 
+use mzcore::pipeline::PointStats;
 use mzcore::spectrum::{Peaks, Spectrum};
 use serde::Serialize;
 
@@ -37,11 +38,7 @@ struct Row<'a> {
 
 fn row<'a>(s: &'a Spectrum, p: &Peaks) -> Row<'a> {
     let m = &s.meta;
-    let base =
-        p.intensity.iter().enumerate().fold(None::<(usize, f64)>, |best, (i, &v)| match best {
-            Some((_, bv)) if bv >= v => best,
-            _ => Some((i, v)),
-        });
+    let stats = PointStats::of(p);
     let precursor = m.precursors.first();
     Row {
         index: m.index,
@@ -50,12 +47,12 @@ fn row<'a>(s: &'a Spectrum, p: &Peaks) -> Row<'a> {
         polarity: m.polarity.symbol(),
         representation: m.representation.name(),
         rt_min: m.rt_min,
-        points: p.len(),
-        intensity_sum: p.intensity.iter().sum(),
-        mz_min: p.mz.iter().copied().reduce(f64::min),
-        mz_max: p.mz.iter().copied().reduce(f64::max),
-        base_peak_mz: base.map(|(i, _)| p.mz[i]),
-        base_peak_intensity: base.map(|(_, v)| v),
+        points: stats.points,
+        intensity_sum: stats.intensity_sum,
+        mz_min: stats.mz_min,
+        mz_max: stats.mz_max,
+        base_peak_mz: stats.base_peak_mz,
+        base_peak_intensity: stats.base_peak_intensity,
         precursor_mz: precursor.and_then(|p| p.selected_mz.or(p.isolation_target)),
         precursor_charge: precursor.and_then(|p| p.charge),
     }
