@@ -454,8 +454,8 @@ pub fn screen_file(
     config: &ScreenConfig,
     pool: &rayon::ThreadPool,
 ) -> Result<FileReport> {
-    let file =
-        File::open(path).map_err(|e| Error::from(e).in_field(&path.display().to_string()))?;
+    // The caller names the file in its messages (as `std::fs` does).
+    let file = File::open(path)?;
     let hashing = Sha256Reader::new(BufReader::with_capacity(256 * 1024, file));
     screen_reader(hashing, config, pool)
 }

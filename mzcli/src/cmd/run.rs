@@ -322,6 +322,9 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
     };
     let config_text = config.to_toml();
     let inputs = discover(&args.inputs)?;
+    if inputs.is_empty() && !args.quiet {
+        eprintln!("mzsift: no .mzML or .mzML.gz files found under the inputs given");
+    }
     let out = &args.out;
     std::fs::create_dir_all(out).with_context(|| out.display().to_string())?;
     // A run that is interrupted must not leave the batch files of an earlier run looking
