@@ -217,6 +217,17 @@ pub fn detect_charge(c: &[Centroid], mono: usize, tol: f64, max_charge: u8) -> u
     1
 }
 
+/// The most intense unconsumed centroid with S/N of at least 3 whose M+2 window holds `mono`.
+fn lower_mono(c: &[Centroid], mono: usize, z: u8, tol: f64, consumed: &[bool]) -> Option<usize> {
+    let zf = f64::from(z);
+    let m = c[mono].mz;
+    let (lo, hi) = (m - 2.0 * C13_DELTA / zf - tol, m - 2.0 * MIN_SHELL_STEP / zf + tol);
+    let start = c[..mono].partition_point(|p| p.mz < lo);
+    (start..mono)
+        .filter(|&i| c[i].mz <= hi && !consumed[i] && c[i].snr >= 3.0)
+        .max_by(|&a, &b| c[a].intensity.total_cmp(&c[b].intensity))
+}
+
 /// Finds and scores the clusters of a spectrum (see the module docs).
 pub fn find_clusters(
     c: &[Centroid],
@@ -240,6 +251,30 @@ pub fn find_clusters(
         if !(score.misfit <= settings.max_misfit) {
             continue;
         }
+        // With three or more bromines the monoisotopic peak is smaller than M+2 and may fall
+        // below `min_snr` while M+2 passes. Try the peak two shells below (detected at S/N 3
+        // at least) as the monoisotopic one; keep it when it fits as well and says halogen.
+        let (mono, shells, score) = match lower_mono(c, mono, z, tol, &consumed) {
+            Some(lower) => {
+                let lm = c[lower].mz;
+                let l_shells = collect_shells(
+                    c,
+                    lower,
+                    z,
+                    tol,
+                    halogen::shells_needed(lm * f64::from(z)),
+                    &stats,
+                );
+                let l_score = halogen::score(c, &l_shells, lm, z, high, tol, settings);
+                if l_score.halogen && l_score.misfit <= score.misfit.max(1.0) {
+                    (lower, l_shells, l_score)
+                } else {
+                    (mono, shells, score)
+                }
+            }
+            None => (mono, shells, score),
+        };
+        let m = &c[mono];
         // Consume partner peaks that the fitted pattern explains.
         for k in 1..shells.len {
             let expect = score.fitted[k];
