@@ -33,9 +33,9 @@ fn demo_batch_features_match_the_truth() {
     assert!(total.precision() >= 0.9, "precision {}", total.precision());
     // Guards against regressions of the current state (see the issue notes for the targets):
     // molecular-ion features, and any halogen feature at the compound's apex (EI fragments).
-    assert!(total.recall() >= 0.55, "recall {}", total.recall());
-    assert!(total.flagged_at_apex >= 25, "{total:?}");
+    assert!(total.recall() >= 0.7, "recall {}", total.recall());
+    assert!(total.flagged_at_apex >= 28, "{total:?}");
     assert!(total.exact as f64 >= 0.9 * total.found as f64, "{total:?}");
     assert_eq!(total.parity.1, 0, "wrong nitrogen-rule calls: {total:?}");
-    assert!(total.parity.0 >= 15, "{total:?}");
+    assert!(total.parity.0 >= 20, "{total:?}");
 }
