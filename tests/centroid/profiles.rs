@@ -8,34 +8,8 @@
 // Generator knobs are plain arguments on purpose (each call site reads as a recipe).
 #![allow(dead_code, clippy::too_many_arguments)]
 
-/// SplitMix64 pseudo-random numbers.
-pub struct Rng(u64);
-
-impl Rng {
-    pub fn new(seed: u64) -> Self {
-        Rng(seed)
-    }
-
-    pub fn next_u64(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    /// Uniform in [0, 1).
-    pub fn uniform(&mut self) -> f64 {
-        (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
-    }
-
-    /// Standard normal (Box-Muller).
-    pub fn normal(&mut self) -> f64 {
-        let u1 = 1.0 - self.uniform(); // (0, 1]
-        let u2 = self.uniform();
-        (-2.0 * u1.ln()).sqrt() * (std::f64::consts::TAU * u2).cos()
-    }
-}
+/// The library's deterministic generator (xoshiro256** seeded by SplitMix64).
+pub use mzcore::synth::rng::Rng;
 
 /// Noise model: `baseline + N(0, 1) * sqrt(sigma^2 + gain * s)` for clean signal `s`.
 #[derive(Clone, Copy, Debug)]
