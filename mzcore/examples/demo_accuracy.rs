@@ -34,7 +34,10 @@ fn main() -> Result<(), mzcore::Error> {
                 Some(false) => "PARITY WRONG",
                 None => "parity not decided",
             };
-            println!("  {:<30} Cl{cl}Br{br}: {found}; {parity}", c.compound);
+            println!(
+                "  {:<30} Cl{cl}Br{br} (mono S/N {:>6.1}): {found}; {parity}",
+                c.compound, c.mono_snr
+            );
         }
         total.add(e);
     }
@@ -48,6 +51,13 @@ fn main() -> Result<(), mzcore::Error> {
         total.precision()
     );
     println!("exact (n_cl, n_br): {} of {} found", total.exact, total.found);
+    let (found, missed, exact) = total.strong;
+    println!(
+        "monoisotopic S/N >= {}: found {found} of {} (recall {:.3}), exact {exact} of {found}",
+        mzcore::synth::evaluate::STRONG_SNR,
+        found + missed,
+        total.strong_recall()
+    );
     println!(
         "halogenated compounds with a halogen feature on the molecular ion or a fragment at the apex: {} of {}",
         total.flagged_at_apex,

@@ -60,7 +60,8 @@ mod pick;
 mod resolution;
 
 pub use noise::{
-    BLOCK_SAMPLES, GLOBAL_SAMPLES, MAD_TO_SIGMA, NoiseLevel, estimate_noise, estimate_noise_blocks,
+    BLOCK_SAMPLES, CLIP_ROUNDS, GLOBAL_SAMPLES, MAD_TO_SIGMA, NoiseLevel, estimate_noise,
+    estimate_noise_blocks, estimate_noise_clipped,
 };
 pub use resolution::{
     CLOSE_SPACING_DA, ResolutionAccumulator, ResolutionClass, ResolutionEstimate, Tolerance,
@@ -337,7 +338,13 @@ impl Centroider {
                 } else {
                     let floor = noise::quantile_in_place(&mut self.samples, 0.1);
                     let median = noise::quantile_in_place(&mut self.samples, 0.5);
-                    if median <= 3.0 * floor {
+                    if median <= 3.0 * floor && params.noise == NoiseMethod::Global {
+                        // The list's own values, peaks included: clip the peaks away before
+                        // taking median/MAD, else a short list (a unit-resolution scan has a
+                        // few dozen entries) lends its peaks to the noise estimate.
+                        let noise = noise::estimate_noise_clipped(&mut self.samples, 3.0, 8);
+                        (noise, params.min_snr)
+                    } else if median <= 3.0 * floor {
                         self.estimate(&intensity[..n], params.noise);
                         (self.noise[0], params.min_snr)
                     } else {

@@ -33,9 +33,12 @@
 //!    the ion type is unknown. In EI spectra the molecular-ion candidate is chosen by the
 //!    rule in [`nitrogen`]; other clusters of an EI spectrum are fragments and get no parity.
 //!
-//! [`SpectrumFlags::ions`] lists the halogen-flagged clusters and the spectrum's
-//! molecular-ion candidate (EI: by the rule; other ionizations: the most intense cluster),
-//! so the nitrogen rule can be reported for non-halogenated compounds too.
+//! [`SpectrumFlags::ions`] lists the halogen-flagged clusters, the clusters whose best
+//! hypothesis is a sulfur or silicon look-alike (not flagged; listed so that a look-alike's
+//! trace across scans stays whole and the scans where a Cl/Br hypothesis wins by chance are
+//! outvoted in its feature), and the spectrum's molecular-ion candidate (EI: by the rule;
+//! other ionizations: the most intense cluster), so the nitrogen rule can be reported for
+//! non-halogenated compounds too.
 //! [`crate::feature::FeatureBuilder`] groups them across scans.
 //!
 //! # Examples
@@ -364,7 +367,10 @@ pub fn flag_spectrum(
             s.halogen = false;
             s.reason = "mass defect implausible for the Cl/Br assignment";
         }
-        if !(s.halogen || is_mol) {
+        // Look-alike rows keep a sulfur or silicon ion's chromatographic trace whole, so the
+        // scans where a Cl/Br hypothesis wins by chance are outvoted in its feature.
+        let look_alike = matches!(s.best, Hypothesis::Sulfur(_) | Hypothesis::Silicon(_));
+        if !(s.halogen || is_mol || look_alike) {
             continue;
         }
         let unc = unc_at(mono.mz);

@@ -66,6 +66,17 @@ pub struct Species {
     pub products: Vec<(f64, f64)>,
 }
 
+impl Species {
+    /// Height of the monoisotopic peak relative to the cluster's tallest peak: the cluster
+    /// entry nearest the monoisotopic m/z.
+    pub fn mono_relative(&self) -> f64 {
+        self.cluster
+            .iter()
+            .min_by(|a, b| (a.0 - self.mz).abs().total_cmp(&(b.0 - self.mz).abs()))
+            .map_or(0.0, |&(_, r)| r)
+    }
+}
+
 /// What a scheduled scan is.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Scan {
@@ -730,8 +741,22 @@ impl Acquisition {
         Ok(WriteSummary { spectra: n, points })
     }
 
+    /// The noise level that [`TruthRow::mono_snr`] divides by: the baseline noise standard
+    /// deviation for profile output; for centroid output, whose list holds the random noise
+    /// peaks rather than the baseline, the larger of that and the noise peaks' mean height
+    /// (exponential heights: their standard deviation equals their mean).
+    fn noise_level(&self) -> f64 {
+        let n = &self.instrument.noise;
+        let level = match self.instrument.output {
+            Output::Profile => n.baseline_sd,
+            Output::Centroid => n.baseline_sd.max(n.grass_intensity),
+        };
+        if level > 0.0 { level } else { 1.0 }
+    }
+
     /// The ground truth of the run: one row per compound.
     pub fn truth(&self) -> Vec<TruthRow> {
+        let noise = self.noise_level();
         self.species
             .iter()
             .map(|s| {
@@ -748,6 +773,7 @@ impl Acquisition {
                     n_n: s.formula.count("N"),
                     nominal_mass: rule.nominal_mass,
                     odd_nominal: rule.nominal_mass % 2 != 0,
+                    mono_snr: s.abundance * s.mono_relative() / noise,
                 }
             })
             .collect()
@@ -804,10 +830,14 @@ pub struct TruthRow {
     pub nominal_mass: i64,
     /// True when the nominal mass is odd.
     pub odd_nominal: bool,
+    /// Expected S/N of the monoisotopic peak at the apex: its noise-free height over the
+    /// instrument's noise level (baseline standard deviation; for centroid output at least the
+    /// mean height of the random noise peaks).
+    pub mono_snr: f64,
 }
 
 /// The header of a truth TSV.
-pub const TRUTH_COLUMNS: [&str; 11] = [
+pub const TRUTH_COLUMNS: [&str; 12] = [
     "compound",
     "formula",
     "ion_type",
@@ -819,6 +849,7 @@ pub const TRUTH_COLUMNS: [&str; 11] = [
     "n_n",
     "nominal_mass",
     "odd_nominal",
+    "mono_snr",
 ];
 
 /// Writes truth rows as TSV with a header line (m/z to 6 decimals).
@@ -827,7 +858,7 @@ pub fn write_truth<W: Write>(rows: &[TruthRow], mut out: W) -> Result<()> {
     t.push('\n');
     for r in rows {
         t.push_str(&format!(
-            "{}\t{}\t{}\t{}\t{:.6}\t{}\t{}\t{}\t{}\t{}\t{}\n",
+            "{}\t{}\t{}\t{}\t{:.6}\t{}\t{}\t{}\t{}\t{}\t{}\t{:.1}\n",
             r.compound,
             r.formula,
             r.ion_type,
@@ -838,7 +869,8 @@ pub fn write_truth<W: Write>(rows: &[TruthRow], mut out: W) -> Result<()> {
             r.n_br,
             r.n_n,
             r.nominal_mass,
-            r.odd_nominal
+            r.odd_nominal,
+            r.mono_snr
         ));
     }
     out.write_all(t.as_bytes())?;

@@ -7,6 +7,10 @@
 //! compound elutes (within 0.3 min); the other unmatched halogen features (fragments and
 //! isotope partners of halogenated compounds) are counted apart. Parity is compared on the
 //! molecular-ion feature that matches a compound, halogenated or not.
+//!
+//! The screening targets are stated for compounds whose monoisotopic peak has S/N of at least
+//! [`STRONG_SNR`] at the apex (the truth file's `mono_snr`); recall and exactness are also
+//! counted for that stratum alone.
 
 use crate::error::{Error, ErrorKind, Result};
 use crate::feature::Feature;
@@ -22,6 +26,9 @@ pub fn read_truth(text: &str) -> Result<Vec<TruthRow>> {
         .collect()
 }
 
+/// Least expected monoisotopic S/N of the compounds the screening targets are stated for.
+pub const STRONG_SNR: f64 = 20.0;
+
 /// What happened to one truth compound.
 #[derive(Debug, Clone, PartialEq)]
 pub struct CompoundOutcome {
@@ -33,6 +40,8 @@ pub struct CompoundOutcome {
     pub found_as: Option<(u8, u8)>,
     /// Nitrogen rule of the matching molecular-ion feature: `Some(right)` when decided.
     pub parity_right: Option<bool>,
+    /// Expected S/N of the monoisotopic peak at the apex.
+    pub mono_snr: f64,
 }
 
 /// Counts over one or more files.
@@ -55,6 +64,9 @@ pub struct Evaluation {
     pub other_halogen_features: usize,
     /// Nitrogen-rule calls right, wrong, undecided.
     pub parity: (usize, usize, usize),
+    /// Halogenated compounds with monoisotopic S/N of at least [`STRONG_SNR`]: found, missed,
+    /// found with the exact (n_cl, n_br).
+    pub strong: (usize, usize, usize),
     /// Per-compound outcomes.
     pub compounds: Vec<CompoundOutcome>,
 }
@@ -63,6 +75,11 @@ impl Evaluation {
     /// Recall of halogenated compounds.
     pub fn recall(&self) -> f64 {
         self.found as f64 / (self.found + self.missed).max(1) as f64
+    }
+
+    /// Recall of halogenated compounds with monoisotopic S/N of at least [`STRONG_SNR`].
+    pub fn strong_recall(&self) -> f64 {
+        self.strong.0 as f64 / (self.strong.0 + self.strong.1).max(1) as f64
     }
 
     /// Precision of halogen features.
@@ -82,6 +99,9 @@ impl Evaluation {
         self.parity.0 += other.parity.0;
         self.parity.1 += other.parity.1;
         self.parity.2 += other.parity.2;
+        self.strong.0 += other.strong.0;
+        self.strong.1 += other.strong.1;
+        self.strong.2 += other.strong.2;
         self.compounds.extend(other.compounds);
     }
 }
@@ -106,12 +126,21 @@ pub fn evaluate(truth: &[TruthRow], features: &[Feature]) -> Evaluation {
         {
             e.flagged_at_apex += 1;
         }
+        let strong = t.mono_snr >= STRONG_SNR;
         match (halogenated, hit) {
             (true, Some(f)) => {
+                let exact = u32::from(f.n_cl) == t.n_cl && u32::from(f.n_br) == t.n_br;
                 e.found += 1;
-                e.exact += usize::from(u32::from(f.n_cl) == t.n_cl && u32::from(f.n_br) == t.n_br);
+                e.exact += usize::from(exact);
+                if strong {
+                    e.strong.0 += 1;
+                    e.strong.2 += usize::from(exact);
+                }
             }
-            (true, None) => e.missed += 1,
+            (true, None) => {
+                e.missed += 1;
+                e.strong.1 += usize::from(strong);
+            }
             (false, Some(_)) => {
                 e.decoys_flagged += 1;
                 e.false_positives += 1;
@@ -139,6 +168,7 @@ pub fn evaluate(truth: &[TruthRow], features: &[Feature]) -> Evaluation {
             truth: (t.n_cl, t.n_br),
             found_as: hit.map(|f| (f.n_cl, f.n_br)),
             parity_right: parity,
+            mono_snr: t.mono_snr,
         });
     }
     for f in &halogen {
