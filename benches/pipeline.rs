@@ -1,6 +1,12 @@
 //! Pipeline throughput (decode + centroid) on the generated 200 MB profile file with 1 and 2
 //! worker threads. Goal: 2 threads at least 1.7 times the 1-thread rate.
-//! Run: `cargo bench --bench pipeline` (the file is cached in target/bench-data/).
+//!
+//! Second group: what flagging and feature grouping add, on a 200 MB synthetic
+//! high-resolution acquisition (the demo's negative-mode LC run at 1,040 MS1 scans of 40,000
+//! points, with its DDA scans): decode + centroid against decode + centroid + flag + features,
+//! both with 2 workers. Goal: at most 20 % more time.
+//!
+//! Run: `cargo bench --bench pipeline` (the files are cached in target/bench-data/).
 
 // criterion_group! generates an undocumented `pub fn`.
 #![allow(missing_docs)]
@@ -11,8 +17,11 @@ mod bigfile;
 use std::hint::black_box;
 
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
+use mzcore::feature::FeatureBuilder;
+use mzcore::flag::{FlagSettings, flag_spectrum};
 use mzcore::mzml::Reader;
 use mzcore::pipeline::{self, PipelineSettings};
+use mzcore::synth::{self, Scenario, SizeOptions};
 
 fn run(path: &std::path::Path, pool: &rayon::ThreadPool) -> usize {
     let mut reader = Reader::from_path(path).unwrap();
@@ -31,6 +40,60 @@ fn run(path: &std::path::Path, pool: &rayon::ThreadPool) -> usize {
     peaks
 }
 
+/// The synthetic high-resolution acquisition of about 200 MB, generated once.
+fn cached_hr() -> std::path::PathBuf {
+    const RUN: &str = "DRWL0417-04_lc-neg_fennick-cross-effluent";
+    let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../target/bench-data/hr");
+    let path = dir.join(format!("{RUN}.mzML"));
+    if !path.exists() {
+        let size =
+            SizeOptions { ms1_scans: Some(1040), points: Some(40_000), ..Default::default() };
+        synth::generate(&Scenario::demo(), &dir, size, &[RUN.to_owned()]).unwrap();
+    }
+    path
+}
+
+/// Decode + centroid, and with `flag` also flagging on the workers and feature grouping in
+/// file order; returns the number of features (or of centroids without `flag`).
+fn screen(path: &std::path::Path, pool: &rayon::ThreadPool, flag: bool) -> usize {
+    let mut reader = Reader::from_path(path).unwrap();
+    let settings = FlagSettings::default();
+    let mut features = FeatureBuilder::new(&settings);
+    let mut centroids = 0;
+    pipeline::run(
+        &mut reader,
+        pool,
+        &PipelineSettings::default(),
+        move |p| flag.then(|| flag_spectrum(&p.meta, &p.centroids, p.resolution, &settings)),
+        |r| {
+            let (p, flags) = r?;
+            centroids += p.centroids.len();
+            if let Some(f) = flags {
+                features.push(&p.meta, &f);
+            }
+            Ok(())
+        },
+    )
+    .unwrap();
+    if flag { features.finish().len() } else { centroids }
+}
+
+fn bench_flagging(c: &mut Criterion) {
+    let path = cached_hr();
+    let bytes = std::fs::metadata(&path).unwrap().len();
+    let pool = pipeline::thread_pool(2).unwrap();
+    let mut g = c.benchmark_group("screening_hr_200mb");
+    g.sample_size(10);
+    g.throughput(Throughput::Bytes(bytes));
+    g.bench_function("decode_centroid_2_threads", |b| {
+        b.iter(|| black_box(screen(&path, &pool, false)))
+    });
+    g.bench_function("decode_centroid_flag_features_2_threads", |b| {
+        b.iter(|| black_box(screen(&path, &pool, true)))
+    });
+    g.finish();
+}
+
 fn bench(c: &mut Criterion) {
     let path = bigfile::cached(200);
     let bytes = std::fs::metadata(&path).unwrap().len();
@@ -46,5 +109,5 @@ fn bench(c: &mut Criterion) {
     g.finish();
 }
 
-criterion_group!(benches, bench);
+criterion_group!(benches, bench, bench_flagging);
 criterion_main!(benches);
