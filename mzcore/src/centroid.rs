@@ -206,6 +206,7 @@ pub struct Centroid {
 #[derive(Debug, Clone, Default)]
 pub struct Centroider {
     samples: Vec<f64>,
+    scratch: Vec<f64>,
     noise: Vec<NoiseLevel>,
     block_len: usize,
     spacing: pick::SpacingModel,
@@ -342,7 +343,12 @@ impl Centroider {
                         // The list's own values, peaks included: clip the peaks away before
                         // taking median/MAD, else a short list (a unit-resolution scan has a
                         // few dozen entries) lends its peaks to the noise estimate.
-                        let noise = noise::estimate_noise_clipped(&mut self.samples, 3.0, 8);
+                        let noise = noise::estimate_noise_clipped(
+                            &mut self.samples,
+                            3.0,
+                            8,
+                            &mut self.scratch,
+                        );
                         (noise, params.min_snr)
                     } else if median <= 3.0 * floor {
                         self.estimate(&intensity[..n], params.noise);

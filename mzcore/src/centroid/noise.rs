@@ -103,7 +103,8 @@ pub const CLIP_ROUNDS: usize = 8;
 /// the plain median/MAD takes the peaks for noise and understates every S/N. Iterative
 /// sigma clipping is the usual remedy (common practice in astronomy and spectroscopy, from
 /// memory). Peaks only ever lie above the noise, so only the upper side is clipped.
-/// `values` is reordered; non-finite values are ignored.
+/// `values` is reordered and shortened; non-finite values are ignored; `scratch` is reused
+/// between calls.
 ///
 /// # Examples
 ///
@@ -112,16 +113,20 @@ pub const CLIP_ROUNDS: usize = 8;
 /// // Eleven noise values near 100 and four peaks.
 /// let mut v = vec![90.0, 95.0, 100.0, 105.0, 110.0, 98.0, 102.0, 97.0, 103.0, 99.0, 101.0,
 ///                  5000.0, 3000.0, 2000.0, 800.0];
-/// let n = estimate_noise_clipped(&mut v, 3.0, 5);
+/// let n = estimate_noise_clipped(&mut v, 3.0, 5, &mut Vec::new());
 /// assert_eq!(n.baseline, 100.0);
 /// assert!(n.sigma < 10.0);
 /// ```
-pub fn estimate_noise_clipped(values: &mut Vec<f64>, clip: f64, min_kept: usize) -> NoiseLevel {
+pub fn estimate_noise_clipped(
+    values: &mut Vec<f64>,
+    clip: f64,
+    min_kept: usize,
+    scratch: &mut Vec<f64>,
+) -> NoiseLevel {
     values.retain(|v| v.is_finite());
-    let mut deviations = Vec::with_capacity(values.len());
     let mut level = NoiseLevel::default();
     for _ in 0..CLIP_ROUNDS {
-        level = estimate_noise(values, values.len().max(1), &mut deviations);
+        level = estimate_noise(values, values.len().max(1), scratch);
         let limit = level.threshold(clip);
         let kept = values.iter().filter(|&&v| v <= limit).count();
         if kept == values.len() || kept < min_kept.max(1) {
@@ -198,7 +203,7 @@ mod tests {
     #[test]
     fn clipping_sets_peaks_aside() {
         let mut v = vec![3.0, 4.0, 5.0, 6.0, 7.0, 7.0, 8.0, 9.0, 10.0, 11.0, 12.0, 40.0, 400.0];
-        let n = estimate_noise_clipped(&mut v, 3.0, 3);
+        let n = estimate_noise_clipped(&mut v, 3.0, 3, &mut Vec::new());
         assert_eq!(n.baseline, 7.0);
         assert!((n.sigma - 2.0 * MAD_TO_SIGMA).abs() < 1e-12, "{n:?}");
         assert_eq!(v.len(), 11);
@@ -209,7 +214,7 @@ mod tests {
         // Median 3, MAD 2 (sigma 2.97), limit 11.9 would keep three values, fewer than four:
         // it stops with the first estimate.
         let mut v = vec![1.0, 2.0, 3.0, 1000.0, 2000.0];
-        let n = estimate_noise_clipped(&mut v, 3.0, 4);
+        let n = estimate_noise_clipped(&mut v, 3.0, 4, &mut Vec::new());
         assert_eq!(n.baseline, 3.0);
         assert_eq!(v.len(), 5);
     }
