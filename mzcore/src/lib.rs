@@ -39,6 +39,7 @@ pub mod flag;
 pub mod hash;
 pub mod mzml;
 pub mod pipeline;
+pub mod qc;
 pub mod report;
 pub mod screen;
 pub mod spectrum;
