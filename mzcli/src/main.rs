@@ -3,6 +3,7 @@
 //! The binary is a thin layer over `mzcore`: it parses arguments, writes data to stdout and
 //! messages to stderr (`mzsift: <file>: <where>: <cause>`), and maps outcomes to exit codes.
 
+mod batch;
 mod cmd;
 mod output;
 
