@@ -1089,6 +1089,40 @@ mod tests {
         );
     }
 
+    #[test]
+    fn unreadable_spectra_are_counted() {
+        let rules = QcRules::from_toml("[max_unreadable]\nlimit = 0\n").unwrap();
+        let lenient = QcRules::from_toml("[max_unreadable]\nlimit = 1\n").unwrap();
+        let text = String::from_utf8(write_doc(&run_scans(false), false)).unwrap();
+        assert_eq!(row(&screen(&rules, "a.mzML", text.as_bytes()), "max_unreadable").observed, "0");
+        // Break the base64 text of the third spectrum's first array.
+        let third = text.match_indices("<binary>").nth(4).unwrap().0 + "<binary>".len();
+        let damaged = format!("{}!!!!{}", &text[..third], &text[third + 4..]);
+        let rows = screen(&rules, "a.mzML", damaged.as_bytes());
+        let r = row(&rows, "max_unreadable");
+        assert_eq!((r.status, r.observed.as_str()), (QcStatus::Fail, "1"), "{rows:?}");
+        assert_eq!(
+            status(&screen(&lenient, "a.mzML", damaged.as_bytes()), "max_unreadable"),
+            QcStatus::Pass
+        );
+    }
+
+    #[test]
+    fn checksum_not_verified_fails() {
+        let rules = QcRules::from_toml("[checksum]\nallow_absent = true\n").unwrap();
+        let pool = crate::pipeline::thread_pool(1).unwrap();
+        let mut config = ScreenConfig::default();
+        config.reader.verify_checksum = false;
+        let doc = write_doc(&run_scans(false), true);
+        let report =
+            screen_reader_traced(Sha256Reader::new(&doc[..]), &config, &pool, &[]).unwrap();
+        let rows = rules.evaluate("a.mzML", &report);
+        assert_eq!(
+            (status(&rows, "checksum"), row(&rows, "checksum").observed.as_str()),
+            (QcStatus::Fail, "not_checked")
+        );
+    }
+
     const CAFFEINE: &str = r#"
 [[compound]]
 name = "caffeine-d9"
