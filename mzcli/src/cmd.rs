@@ -1,10 +1,12 @@
 //! One module per subcommand, and what they share.
 
+pub mod check;
 pub mod config;
 pub mod demo;
 pub mod info;
 pub mod list;
 pub mod mass;
+pub mod merge;
 pub mod pattern;
 pub mod peaks;
 pub mod run;

@@ -3,6 +3,7 @@
 //! The binary is a thin layer over `mzcore`: it parses arguments, writes data to stdout and
 //! messages to stderr (`mzsift: <file>: <where>: <cause>`), and maps outcomes to exit codes.
 
+mod batch;
 mod cmd;
 mod output;
 
@@ -31,6 +32,28 @@ configuration error. Flags are screening hints, not identifications.",
         after_help = "Examples:\n  mzsift run fixtures/demo -o night-report\n  mzsift run /data/night-04 -o out -j 2 --config lab.toml --resume"
     )]
     Run(cmd::run::RunArgs),
+    /// QC gate for new data: per-file rules, check.tsv, JUnit XML, exit code 0 pass / 1 fail.
+    #[command(
+        long_about = "Screens every input once and evaluates the rules of a TOML file (spectra and \
+MS1 counts, retention-time coverage, scan-time gaps, median TIC, empty spectra, unreadable \
+spectra, checksum, required compounds, carry-over into blanks). Each rule passes, warns or \
+fails with the observed value and the limit. Writes OUTDIR/check.tsv and \
+OUTDIR/check.junit.xml (without -o: check.tsv on stdout) and one summary line on stderr. Exit \
+code 0: no rule failed (warnings allowed); 1: some rule failed; 2: usage or rules error (an \
+unknown key or a wrong type names the key).",
+        after_help = "Examples:\n  mzsift check fixtures/demo --rules fixtures/qc-rules.toml -o qc\n  mzsift check new/night-04.mzML --rules lab-qc.toml > check.tsv"
+    )]
+    Check(cmd::check::CheckArgs),
+    /// Combine the output folders of separate runs into one batch (batch.tsv, run.json).
+    #[command(
+        long_about = "Combines the output folders of separate `mzsift run`s (e.g. one cluster job \
+per input) into OUTDIR: every report folder (names made unique with -2, -3, ...), batch.tsv \
+with rows ordered by input path, and run.json. Runs made with another tool version or other \
+parameters (the thread count aside) are refused unless --allow-mixed is given. Exit code 0: \
+every file ok; 1: some file failed, was partial or skipped; 2: usage error or refused.",
+        after_help = "Examples:\n  mzsift merge parts/night-01 parts/night-02 -o night\n  mzsift merge jobs/* -o all --allow-mixed"
+    )]
+    Merge(cmd::merge::MergeArgs),
     /// Print the default configuration as commented TOML (or check a configuration file).
     #[command(
         after_help = "Examples:\n  mzsift config > lab.toml\n  mzsift config --check lab.toml"
@@ -78,6 +101,8 @@ fn main() -> ExitCode {
     let mut out = std::io::BufWriter::new(stdout.lock());
     let result = match &cli.command {
         Command::Run(a) => cmd::run::run(a),
+        Command::Check(a) => cmd::check::run(a, &mut out),
+        Command::Merge(a) => cmd::merge::run(a),
         Command::Config(a) => cmd::config::run(a, &mut out),
         Command::List(a) => cmd::list::run(a, &mut out),
         Command::Info(a) => cmd::info::run(a, &mut out),

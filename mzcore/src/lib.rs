@@ -8,6 +8,8 @@
 //! - [`spectrum::Peaks`] are the decoded m/z and intensity arrays;
 //! - [`mzml::IndexedReader`] reads single spectra of indexed files at random;
 //! - [`mzml::Writer`] writes indexed or plain mzML with any supported encoding;
+//! - [`screen::screen_file`] screens one file end to end into a [`screen::FileReport`], and
+//!   [`qc::QcRules`] evaluates a QC gate on it;
 //! - [`Error`] carries an [`ErrorKind`] and a [`Position`] (byte offset, spectrum index and id).
 //!
 //! # Example
@@ -39,6 +41,7 @@ pub mod flag;
 pub mod hash;
 pub mod mzml;
 pub mod pipeline;
+pub mod qc;
 pub mod report;
 pub mod screen;
 pub mod spectrum;

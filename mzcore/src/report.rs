@@ -36,6 +36,42 @@ pub fn escape_text(s: &str) -> String {
     out
 }
 
+/// Reverses [`escape_text`]: `\t`, `\n`, `\r` and `\\` back to tab, newline, carriage
+/// return and backslash (any other backslash pair is kept as written).
+///
+/// # Examples
+///
+/// ```
+/// use mzcore::report::{escape_text, unescape_text};
+/// let s = "a\tb\\c\n";
+/// assert_eq!(unescape_text(&escape_text(s)), s);
+/// ```
+pub fn unescape_text(s: &str) -> String {
+    if !s.contains('\\') {
+        return s.to_owned();
+    }
+    let mut out = String::with_capacity(s.len());
+    let mut chars = s.chars();
+    while let Some(c) = chars.next() {
+        if c != '\\' {
+            out.push(c);
+            continue;
+        }
+        match chars.next() {
+            Some('t') => out.push('\t'),
+            Some('n') => out.push('\n'),
+            Some('r') => out.push('\r'),
+            Some('\\') => out.push('\\'),
+            Some(other) => {
+                out.push('\\');
+                out.push(other);
+            }
+            None => out.push('\\'),
+        }
+    }
+    out
+}
+
 /// Writes `rows` as TSV to `out`, with `header` when there are no rows (serde writes the
 /// header from the first row otherwise).
 pub fn write_tsv<W: Write, T: Serialize>(out: W, header: &[&str], rows: &[T]) -> Result<()> {

@@ -3,7 +3,8 @@
 //! [`screen_file`] (or [`screen_reader`]) streams a file through the parallel pipeline
 //! (decode, centroid, flag), groups flagged ions into features, and returns the same rows the
 //! TSV reports hold ([`FileReport`]), as serde-serializable structs. [`ScreenConfig`] holds every
-//! parameter; it reads from and writes to TOML.
+//! parameter; it reads from and writes to TOML. [`screen_file_traced`] also records
+//! extracted-ion traces ([`TraceTarget`]) in the same pass, for checks such as [`crate::qc`].
 //!
 //! Flags are screening hints from isotope patterns and mass parity, not identifications.
 
@@ -18,8 +19,9 @@ use crate::centroid::CentroidParams;
 use crate::error::{Error, ErrorKind, Result};
 use crate::feature::{Feature, FeatureBuilder};
 use crate::flag::{self, FlagSettings, FlaggedIon, OddNominal, SpectrumFlags};
-use crate::mzml::{Reader, ReaderOptions};
+use crate::mzml::{ChecksumStatus, Reader, ReaderOptions};
 use crate::pipeline::{self, PipelineSettings, ProcessedSpectrum};
+use crate::spectrum::Polarity;
 
 /// The cautions that go with every report.
 pub const CAUTION: &str = "Flags are screening hints from isotope patterns and mass parity, not \
@@ -386,6 +388,10 @@ pub struct FileSummary {
     pub sha256: String,
     /// Input size, bytes.
     pub bytes: u64,
+    /// Outcome of the SHA-1 `fileChecksum` verification (`not_checked` when verification is
+    /// off or the end of the document was not reached).
+    #[serde(default)]
+    pub checksum: ChecksumStatus,
 }
 
 /// Everything the reports of one file hold.
@@ -399,6 +405,49 @@ pub struct FileReport {
     pub ions: Vec<FlaggedIon>,
     /// One row per feature.
     pub features: Vec<Feature>,
+    /// One extracted-ion trace per [`TraceTarget`] asked for (empty for [`screen_file`]).
+    pub traces: Vec<Vec<TracePoint>>,
+}
+
+/// An extracted-ion trace to record while screening: for every readable MS1 spectrum whose
+/// polarity matches, the most intense centroid within `tolerance` of `mz`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct TraceTarget {
+    /// Ion m/z.
+    pub mz: f64,
+    /// Half-width of the m/z window (Th).
+    pub tolerance: f64,
+    /// Spectra of this polarity only; [`Polarity::Unknown`] takes every spectrum. Spectra that
+    /// do not state their polarity are always taken.
+    pub polarity: Polarity,
+}
+
+impl TraceTarget {
+    /// The most intense centroid within the window, 0 when there is none.
+    fn intensity_in(&self, centroids: &[crate::centroid::Centroid]) -> f64 {
+        centroids
+            .iter()
+            .filter(|c| (c.mz - self.mz).abs() <= self.tolerance)
+            .map(|c| c.intensity)
+            .fold(0.0, f64::max)
+    }
+
+    fn takes(&self, polarity: Polarity) -> bool {
+        self.polarity == Polarity::Unknown
+            || polarity == Polarity::Unknown
+            || polarity == self.polarity
+    }
+}
+
+/// One point of an extracted-ion trace.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct TracePoint {
+    /// Index of the spectrum in the file.
+    pub index: usize,
+    /// Its scan start time, minutes.
+    pub rt_min: Option<f64>,
+    /// Most intense centroid within the window (0 when none).
+    pub intensity: f64,
 }
 
 /// Hashes (SHA-256) every byte read through it.
@@ -454,10 +503,21 @@ pub fn screen_file(
     config: &ScreenConfig,
     pool: &rayon::ThreadPool,
 ) -> Result<FileReport> {
+    screen_file_traced(path, config, pool, &[])
+}
+
+/// [`screen_file`] that also records one extracted-ion trace per target in
+/// [`FileReport::traces`], in the same pass over the file.
+pub fn screen_file_traced(
+    path: &Path,
+    config: &ScreenConfig,
+    pool: &rayon::ThreadPool,
+    targets: &[TraceTarget],
+) -> Result<FileReport> {
     // The caller names the file in its messages (as `std::fs` does).
     let file = File::open(path)?;
     let hashing = Sha256Reader::new(BufReader::with_capacity(256 * 1024, file));
-    screen_reader(hashing, config, pool)
+    screen_reader_traced(hashing, config, pool, targets)
 }
 
 /// Screens an mzML stream (plain or gzip) read through a [`Sha256Reader`].
@@ -485,6 +545,42 @@ pub fn screen_reader<R: BufRead>(
     config: &ScreenConfig,
     pool: &rayon::ThreadPool,
 ) -> Result<FileReport> {
+    screen_reader_traced(input, config, pool, &[])
+}
+
+/// [`screen_reader`] that also records one extracted-ion trace per target (see
+/// [`screen_file_traced`]). The traces are computed on the workers, beside the flagging.
+///
+/// # Examples
+///
+/// ```
+/// use mzcore::mzml::{Writer, WriterOptions};
+/// use mzcore::screen::{screen_reader_traced, ScreenConfig, Sha256Reader, TraceTarget};
+/// use mzcore::spectrum::{Peaks, Polarity, Representation, SpectrumMeta};
+///
+/// let mut w = Writer::new(Vec::new(), WriterOptions::default())?;
+/// let meta = SpectrumMeta {
+///     id: "scan=1".into(), ms_level: 1, rt_min: Some(2.0),
+///     representation: Representation::Centroid, ..Default::default()
+/// };
+/// let mz: Vec<f64> = (0..50).map(|i| 100.0 + i as f64).collect();
+/// let mut intensity: Vec<f64> = (0..50).map(|i| 10.0 + (i % 5) as f64).collect();
+/// intensity[20] = 5000.0;
+/// w.write_spectrum(&meta, &Peaks { mz, intensity })?;
+/// let doc = w.finish()?;
+///
+/// let pool = mzcore::pipeline::thread_pool(1)?;
+/// let target = TraceTarget { mz: 120.001, tolerance: 0.01, polarity: Polarity::Unknown };
+/// let report = screen_reader_traced(Sha256Reader::new(&doc[..]), &ScreenConfig::default(), &pool, &[target])?;
+/// assert_eq!(report.traces[0][0].intensity, 5000.0);
+/// # Ok::<_, mzcore::Error>(())
+/// ```
+pub fn screen_reader_traced<R: BufRead>(
+    input: Sha256Reader<R>,
+    config: &ScreenConfig,
+    pool: &rayon::ThreadPool,
+    targets: &[TraceTarget],
+) -> Result<FileReport> {
     config.validate()?;
     let mut summary = FileSummary {
         status: FileStatus::Ok,
@@ -502,19 +598,39 @@ pub fn screen_reader<R: BufRead>(
         index_entries: None,
         sha256: String::new(),
         bytes: 0,
+        checksum: ChecksumStatus::NotChecked,
     };
+    let mut traces: Vec<Vec<TracePoint>> = vec![Vec::new(); targets.len()];
     let mut spectra = Vec::new();
     let mut ions = Vec::new();
     let mut features = FeatureBuilder::new(&config.flag);
     let mut file_errors: Vec<String> = Vec::new();
     let mut reader = Reader::with_options(input, config.reader.options())?;
     let flag_settings = config.flag.clone();
+    let shared_targets: std::sync::Arc<[TraceTarget]> = targets.into();
     let extra = move |p: &ProcessedSpectrum| {
-        flag::flag_spectrum(&p.meta, &p.centroids, p.resolution, &flag_settings)
+        let flags = flag::flag_spectrum(&p.meta, &p.centroids, p.resolution, &flag_settings);
+        let traced: Vec<Option<f64>> = shared_targets
+            .iter()
+            .map(|t| {
+                (p.meta.ms_level <= 1 && t.takes(p.meta.polarity))
+                    .then(|| t.intensity_in(&p.centroids))
+            })
+            .collect();
+        (flags, traced)
     };
     pipeline::run(&mut reader, pool, &config.pipeline_settings(), extra, |result| {
         match result {
-            Ok((p, flags)) => {
+            Ok((p, (flags, traced))) => {
+                for (trace, intensity) in traces.iter_mut().zip(traced) {
+                    if let Some(intensity) = intensity {
+                        trace.push(TracePoint {
+                            index: p.meta.index,
+                            rt_min: p.meta.rt_min,
+                            intensity,
+                        });
+                    }
+                }
                 summary.spectra += 1;
                 if p.meta.ms_level <= 1 {
                     summary.ms1 += 1;
@@ -577,6 +693,7 @@ pub fn screen_reader<R: BufRead>(
             .filter(|id| !seen.contains(crate::report::escape_text(id).as_str()))
             .collect();
     }
+    summary.checksum = reader.checksum_status().clone();
     let (sha256, bytes) = reader.into_inner().finish()?;
     summary.sha256 = sha256;
     summary.bytes = bytes;
@@ -602,7 +719,7 @@ pub fn screen_reader<R: BufRead>(
             .map(|u| format!("{} unreadable spectra; first: {}", summary.unreadable.len(), u.error))
     });
     summary.error = crate::report::escape_text(&first.unwrap_or_default());
-    Ok(FileReport { summary, spectra, ions, features })
+    Ok(FileReport { summary, spectra, ions, features, traces })
 }
 
 #[cfg(test)]

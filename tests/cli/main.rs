@@ -2,9 +2,11 @@
 
 mod util;
 
+mod check;
 mod chem;
 mod demo;
 mod info;
 mod list;
+mod merge;
 mod peaks;
 mod run;

@@ -86,7 +86,8 @@ impl ReaderOptions {
 }
 
 /// Outcome of the `fileChecksum` verification.
-#[derive(Debug, Clone, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "snake_case")]
 pub enum ChecksumStatus {
     /// Verification was not requested (or the end of the document was not reached yet).
     #[default]
