@@ -342,13 +342,19 @@ fn generation_is_deterministic_and_depends_on_the_seed() {
 fn truth_tables_have_the_agreed_columns_and_values() {
     assert_eq!(
         TRUTH_COLUMNS.join("\t"),
-        "compound\tformula\tion_type\tcharge\tmz\trt_apex_min\tn_cl\tn_br\tn_n\tnominal_mass\todd_nominal"
+        "compound\tformula\tion_type\tcharge\tmz\trt_apex_min\tn_cl\tn_br\tn_n\tnominal_mass\todd_nominal\tmono_snr"
     );
     let demo = Scenario::demo();
     let mut rows = Vec::new();
     for run in &demo.runs {
         rows.extend(Acquisition::new(&demo, run, SizeOptions::default()).unwrap().truth());
     }
+    // mono_snr by hand: chloroform's M+. is the tallest shell of its Cl3 cluster (35Cl^3
+    // 0.4348 against 3 x 35Cl^2 x 37Cl 0.4174, abundances of the chemistry core), so its
+    // height is the scenario's abundance 3000; the GC instrument writes centroids, whose
+    // noise level is the larger of baseline_sd 30 and the noise peaks' mean height 140.
+    let chloroform = rows.iter().find(|r| r.compound == "chloroform").unwrap();
+    assert!((chloroform.mono_snr - 3000.0 / 140.0).abs() < 1e-9, "{chloroform:?}");
     let distinct: std::collections::BTreeSet<&str> =
         rows.iter().map(|r| r.compound.as_str()).collect();
     assert!(distinct.len() >= 30, "{} compounds", distinct.len());
