@@ -30,11 +30,11 @@ const DOCS: &[(&str, &str)] = &[
     ("centroid.min_snr", "least S/N of a profile peak's apex (noise: median/MAD)"),
     (
         "centroid.noise",
-        "noise estimate: \"Global\", or { Sliding = { window = N } } for a changing baseline",
+        "noise estimate: \"global\"; { sliding = { window = N } } for a changing baseline; { fixed = { baseline = B, sigma = S } } when the spectra cannot show their noise (zeros and low points dropped)",
     ),
     (
         "centroid.apex",
-        "apex m/z: \"GaussianFit\", \"Gaussian3\" (3-point log-parabola) or \"WeightedHalfHeight\"",
+        "apex m/z: \"gaussian_fit\", \"gaussian3\" (3-point log-parabola) or \"weighted_half_height\"",
     ),
     (
         "centroid.min_valley_depth",
@@ -53,7 +53,7 @@ const DOCS: &[(&str, &str)] = &[
         "centroid.centroided_min_snr",
         "least S/N of a peak in clean centroided data, against the list's floor",
     ),
-    ("flag.tolerance", "isotope partner tolerance: \"Auto\", { Ppm = 5.0 } or { Da = 0.3 }"),
+    ("flag.tolerance", "isotope partner tolerance: \"auto\", { ppm = 5.0 } or { da = 0.3 }"),
     ("flag.min_snr", "least S/N of a cluster's monoisotopic peak"),
     ("flag.max_charge", "highest charge tried at high resolution (1 to 3)"),
     (
