@@ -290,6 +290,9 @@ impl<R: BufRead> Reader<R> {
         header: Header,
         base: u64,
     ) -> Result<Self> {
+        // A checksum covers the whole document: a reader that starts in the middle cannot
+        // verify it, so it does not hash (nor start a hashing thread) at all.
+        let options = options.verify_checksum(false);
         let mut r = Reader::with_options(inner, options)?;
         r.header = header;
         r.base = base;
