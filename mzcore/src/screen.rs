@@ -36,8 +36,15 @@ pub struct ReaderSettings {
     pub max_event_bytes: u64,
     /// Ceiling on a declared array length, values.
     pub max_array_length: usize,
-    /// Ceiling on element nesting inside a spectrum.
+    /// Ceiling on element nesting (inside a spectrum, and in the whole document).
     pub max_depth: usize,
+    /// Ceiling on the encoded array text held for one spectrum, bytes.
+    pub max_spectrum_bytes: u64,
+    /// Ceiling on the elements of one spectrum (referenced cvParams included) and the
+    /// cvParams of one param group.
+    pub max_elements: usize,
+    /// Ceiling on the decompression ratio of gzip input (checked after 64 MiB of output).
+    pub max_gzip_ratio: u64,
 }
 
 impl Default for ReaderSettings {
@@ -48,6 +55,9 @@ impl Default for ReaderSettings {
             max_event_bytes: d.max_event_bytes,
             max_array_length: d.max_array_length,
             max_depth: d.max_depth,
+            max_spectrum_bytes: d.max_spectrum_bytes,
+            max_elements: d.max_elements,
+            max_gzip_ratio: d.max_gzip_ratio,
         }
     }
 }
@@ -60,6 +70,9 @@ impl ReaderSettings {
             .max_event_bytes(self.max_event_bytes)
             .max_array_length(self.max_array_length)
             .max_depth(self.max_depth)
+            .max_spectrum_bytes(self.max_spectrum_bytes)
+            .max_elements(self.max_elements)
+            .max_gzip_ratio(self.max_gzip_ratio)
     }
 }
 
