@@ -4,7 +4,9 @@ mod util;
 
 mod chem;
 mod demo;
+mod faults;
 mod info;
 mod list;
+mod nothing_lost;
 mod peaks;
 mod run;
