@@ -193,3 +193,25 @@ fn input_cut_off_while_being_read_is_partial_and_the_batch_goes_on() {
     );
     assert_only_complete_reports(&out);
 }
+
+#[test]
+fn reader_limits_come_from_the_reader_section_of_the_config() {
+    // Each spectrum of the fixture has more than five elements: with max_elements = 5 every
+    // spectrum is refused, by name of the limit, and the file fails as a whole.
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("tight.toml"), "[reader]\nmax_elements = 5\n").unwrap();
+    let input = fixture("variant-plain.mzML");
+    let o = mzsift(dir.path())
+        .args(["run", input.to_str().unwrap(), "-o", "out", "-q", "--config", "tight.toml"])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(1), "{}", stderr(&o));
+    let (header, rows) = tsv(&read(&dir.path().join("out/batch.tsv")));
+    let col = |n: &str| header.iter().position(|h| h == n).unwrap();
+    assert_eq!(rows[0][col("status")], "failed", "{rows:?}");
+    assert!(rows[0][col("error")].contains("max_elements"), "{rows:?}");
+    assert_eq!(rows[0][col("unreadable_spectra")], "4", "{rows:?}");
+    // The defaults read the same file whole.
+    let o = mzsift(dir.path()).args(["run", input.to_str().unwrap(), "-o", "out2", "-q"]).output();
+    assert_eq!(o.unwrap().status.code(), Some(0));
+}
