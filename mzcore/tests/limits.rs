@@ -167,6 +167,18 @@ fn in_second_spectrum(name: &str, e: &Error) {
     assert_eq!(p.spectrum_id.as_deref(), Some("scan=2"), "{name}: {e}");
 }
 
+/// Start of spectrum 1 (`scan=2`) in `doc`.
+fn s1_at(doc: &str) -> usize {
+    doc.match_indices("<spectrum ").nth(1).unwrap().0
+}
+
+/// Asserts the error names the spectrum at position 1 (the first deep one, id `deep`).
+fn in_second_spectrum_or_deep(name: &str, e: &Error) {
+    let p = e.position();
+    assert_eq!(p.spectrum_id.as_deref(), Some("deep"), "{name}: {e}");
+    assert!(p.byte_offset.is_some(), "{name}: {e}");
+}
+
 fn ids(o: &[Result<String, Error>]) -> Vec<&str> {
     o.iter().filter_map(|r| r.as_ref().ok().map(String::as_str)).collect()
 }
@@ -256,6 +268,22 @@ fn cases() -> Vec<Case> {
             let last = o.last().unwrap().as_ref().unwrap_err();
             assert!(matches!(last.kind(), ErrorKind::LimitExceeded { .. }), "{name}: {last}");
             assert_eq!(ids(o), ["scan=1"], "{name}");
+            assert!(pulled < MIB, "{name}: read {pulled} bytes before stopping");
+        },
+    ));
+
+    // Spectra that each nest just beyond the ceiling, repeated: stepping over each would
+    // leave its open elements with the tokenizer, so the first one ends the document.
+    let mut deep = b"<spectrum index=\"9\" id=\"deep\" defaultArrayLength=\"0\">".to_vec();
+    deep.extend(b"<a>".repeat(70));
+    cases.push(case(
+        "repeated deep spectra",
+        vec![(doc.as_bytes()[..s1_at(&doc)].to_vec(), 1), (deep, 300_000)],
+        ReaderOptions::default(),
+        |name, o, pulled| {
+            in_second_spectrum_or_deep(name, limit_error(name, o, "max_depth"));
+            assert_eq!(ids(o), ["scan=1"], "{name}");
+            assert_eq!(o.len(), 2, "{name}: fatal");
             assert!(pulled < MIB, "{name}: read {pulled} bytes before stopping");
         },
     ));

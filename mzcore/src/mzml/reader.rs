@@ -40,8 +40,10 @@ use crate::spectrum::{ArrayKind, Chromatogram, Spectrum};
 /// The `max_*` fields are resource limits: input that exceeds one gets a
 /// [`ErrorKind::LimitExceeded`] error naming the limit (by its option name), the byte offset
 /// and the spectrum, and memory stays bounded by the limits whatever the input. A limit met
-/// inside a spectrum costs that spectrum only (the reader goes on with the next); one met
-/// outside a spectrum, or by the document as a whole, ends the document.
+/// inside a spectrum costs that spectrum only (the reader goes on with the next), except
+/// nesting beyond `max_depth`; that one, and one met outside a spectrum or by the document as
+/// a whole, ends the document (the tokenizer keeps every open element's name, so stepping
+/// over deep nesting would not stay bounded).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub struct ReaderOptions {
     /// Compute the SHA-1 of the document and compare it with `fileChecksum`.
@@ -575,6 +577,10 @@ impl<R: BufRead> Reader<R> {
             Err(BodyError::Eof(at)) => Err(self
                 .fatal(ErrorKind::Truncated { complete_spectra: self.complete_spectra }, at)
                 .in_spectrum(index, &spectrum.meta.id.clone())),
+            Err(BodyError::Fatal(err, at)) => {
+                self.state = State::Finished;
+                Err(err.at_byte(at).in_spectrum(index, &spectrum.meta.id.clone()))
+            }
         }
     }
 
@@ -602,6 +608,10 @@ impl<R: BufRead> Reader<R> {
             Err(BodyError::Eof(at)) => {
                 let kind = ErrorKind::Truncated { complete_spectra: self.complete_spectra };
                 return Err(with_id(self.fatal(kind, at)));
+            }
+            Err(BodyError::Fatal(err, at)) => {
+                self.state = State::Finished;
+                return Err(with_id(err.at_byte(at)));
             }
         }
         if !facts.is_tic || self.tic.is_some() {

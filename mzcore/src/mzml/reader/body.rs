@@ -227,6 +227,10 @@ pub(crate) enum BodyError {
     Xml(quick_xml::Error, u64),
     /// The input ended inside the element.
     Eof(u64),
+    /// The element broke a limit after which the document cannot be read on within bounded
+    /// memory (nesting beyond `max_depth`: the tokenizer keeps the name of every open element,
+    /// so stepping over the rest would grow with the input). At this byte offset.
+    Fatal(Error, u64),
 }
 
 fn missing_attr(element: &str, attribute: &str) -> Error {
@@ -271,7 +275,7 @@ impl Body<'_> {
                     self.stack.push((tag, ShortName::of(local.as_ref())));
                     if self.stack.len() > self.limits.max_depth {
                         let kind = super::depth_exceeded(self.stack.len(), self.limits.max_depth);
-                        return Err(self.give_up(Error::new(kind), pos));
+                        return Err(BodyError::Fatal(Error::new(kind), pos));
                     }
                 }
                 Event::Empty(e) => {
