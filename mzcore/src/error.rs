@@ -53,6 +53,15 @@ impl fmt::Display for Position {
     }
 }
 
+/// The end of an `IndexMismatch` message: where the element really is, if it was found.
+fn found_at(actual: u64) -> String {
+    if actual == u64::MAX {
+        "no spectrum with that id was found there".to_owned()
+    } else {
+        format!("the element starts at {actual}")
+    }
+}
+
 /// What went wrong. New kinds may be added in any release.
 #[derive(Debug, thiserror::Error)]
 #[non_exhaustive]
@@ -116,7 +125,7 @@ pub enum ErrorKind {
     #[error("duplicate spectrum id '{0}'")]
     DuplicateId(String),
     /// The index of an indexed mzML points somewhere other than where the element is.
-    #[error("index offset for '{id}' is {indexed} but the element starts at {actual}")]
+    #[error("index offset for '{id}' is {indexed} but {}", found_at(*actual))]
     IndexMismatch {
         /// Native id.
         id: String,

@@ -38,8 +38,15 @@ pub struct ReaderSettings {
     pub max_event_bytes: u64,
     /// Ceiling on a declared array length, values.
     pub max_array_length: usize,
-    /// Ceiling on element nesting inside a spectrum.
+    /// Ceiling on element nesting (inside a spectrum, and in the whole document).
     pub max_depth: usize,
+    /// Ceiling on the encoded array text held for one spectrum, bytes.
+    pub max_spectrum_bytes: u64,
+    /// Ceiling on the elements of one spectrum (referenced cvParams included) and the
+    /// cvParams of one param group.
+    pub max_elements: usize,
+    /// Ceiling on the decompression ratio of gzip input (checked after 64 MiB of output).
+    pub max_gzip_ratio: u64,
 }
 
 impl Default for ReaderSettings {
@@ -50,6 +57,9 @@ impl Default for ReaderSettings {
             max_event_bytes: d.max_event_bytes,
             max_array_length: d.max_array_length,
             max_depth: d.max_depth,
+            max_spectrum_bytes: d.max_spectrum_bytes,
+            max_elements: d.max_elements,
+            max_gzip_ratio: d.max_gzip_ratio,
         }
     }
 }
@@ -62,6 +72,9 @@ impl ReaderSettings {
             .max_event_bytes(self.max_event_bytes)
             .max_array_length(self.max_array_length)
             .max_depth(self.max_depth)
+            .max_spectrum_bytes(self.max_spectrum_bytes)
+            .max_elements(self.max_elements)
+            .max_gzip_ratio(self.max_gzip_ratio)
     }
 }
 
@@ -463,6 +476,11 @@ impl<R: BufRead> Sha256Reader<R> {
         Sha256Reader { inner, hasher: BackgroundDigest::new::<sha2::Sha256>(), bytes: 0 }
     }
 
+    /// Bytes read through so far.
+    pub fn bytes_read(&self) -> u64 {
+        self.bytes
+    }
+
     /// Reads the rest of the input and returns its SHA-256 (hex) and byte count.
     pub fn finish(mut self) -> std::io::Result<(String, u64)> {
         std::io::copy(&mut self, &mut std::io::sink())?;
@@ -605,6 +623,8 @@ pub fn screen_reader_traced<R: BufRead>(
     let mut ions = Vec::new();
     let mut features = FeatureBuilder::new(&config.flag);
     let mut file_errors: Vec<String> = Vec::new();
+    let mut stopped = false;
+    let mut unplaced: Vec<UnreadableSpectrum> = Vec::new();
     let mut reader = Reader::with_options(input, config.reader.options())?;
     let flag_settings = config.flag.clone();
     let shared_targets: std::sync::Arc<[TraceTarget]> = targets.into();
@@ -659,9 +679,15 @@ pub fn screen_reader_traced<R: BufRead>(
                         id: pos.spectrum_id.clone(),
                         error: e.to_string(),
                     };
-                    let index = u.index.unwrap_or(spectra.len());
-                    spectra.push(SpectrumRow::unreadable(index, &u));
-                    summary.unreadable.push(u);
+                    match u.index {
+                        Some(index) => {
+                            spectra.push(SpectrumRow::unreadable(index, &u));
+                            summary.unreadable.push(u);
+                        }
+                        // Known by id only (an index entry that leads nowhere): placed once
+                        // the index is known.
+                        None => unplaced.push(u),
+                    }
                 }
                 // Problems of the file as a whole (index, checksum, a cut, an I/O failure, a
                 // limit) are file errors, whether or not they also cost a spectrum.
@@ -675,11 +701,19 @@ pub fn screen_reader_traced<R: BufRead>(
                 if whole_file {
                     file_errors.push(e.to_string());
                 }
+                // Reading stopped before the end (a cut, an I/O failure, a limit).
+                stopped |= matches!(
+                    e.kind(),
+                    ErrorKind::Truncated { .. }
+                        | ErrorKind::Io(_)
+                        | ErrorKind::LimitExceeded { .. }
+                );
             }
         }
         Ok(())
     })?;
     let index: Vec<String> = reader.index().iter().map(|(id, _)| id.clone()).collect();
+    let declared = reader.declared_spectrum_count();
     if !index.is_empty() {
         summary.index_entries = Some(index.len());
         let seen: std::collections::HashSet<&str> = spectra
@@ -687,16 +721,29 @@ pub fn screen_reader_traced<R: BufRead>(
             .filter(|r| r.status == "ok")
             .map(|r| r.id.as_str())
             .chain(summary.unreadable.iter().filter_map(|u| u.id.as_deref()))
+            .chain(unplaced.iter().filter_map(|u| u.id.as_deref()))
             .collect();
         summary.missing_from_index = index
-            .into_iter()
+            .iter()
             .filter(|id| !seen.contains(crate::report::escape_text(id).as_str()))
+            .cloned()
             .collect();
     }
     summary.checksum = reader.checksum_status().clone();
-    let (sha256, bytes) = reader.into_inner().finish()?;
-    summary.sha256 = sha256;
-    summary.bytes = bytes;
+    list_missing(&mut spectra, &mut summary, unplaced, &index, declared.filter(|_| stopped));
+    // The rest of the input is read for its SHA-256. An input that fails now (or failed
+    // while the reader read it) keeps its report: the spectra read are kept, no hash.
+    let mut hashing = reader.into_inner();
+    match std::io::copy(&mut hashing, &mut std::io::sink()) {
+        Ok(_) => (summary.sha256, summary.bytes) = hashing.finish()?,
+        Err(e) => {
+            summary.bytes = hashing.bytes_read();
+            let e = Error::new(ErrorKind::Io(e)).in_field("SHA-256 of the input");
+            if file_errors.is_empty() {
+                file_errors.push(e.to_string());
+            }
+        }
+    }
     let features = features.finish();
     summary.halogen_features = features.iter().filter(|f| f.n_cl + f.n_br > 0).count();
     summary.odd_nominal_features =
@@ -720,6 +767,60 @@ pub fn screen_reader_traced<R: BufRead>(
     });
     summary.error = crate::report::escape_text(&first.unwrap_or_default());
     Ok(FileReport { summary, spectra, ions, features, traces })
+}
+
+/// Most `unreadable` rows added for spectra that a file whose reading stopped early promises in
+/// its `spectrumList` count (a damaged count attribute must not make the report itself huge).
+pub const MAX_MISSING_LISTED: usize = 1_000_000;
+
+/// Lists the spectra a file announces but that never arrived, so that none goes missing
+/// silently: those known by id only (`unplaced`, placed at their index position), those its
+/// index names (`index`: ids in index order; a row at the index position with the id), and,
+/// when reading stopped early (`declared`: the `spectrumList` count), every position
+/// not read (id unknown; at most [`MAX_MISSING_LISTED`]). Each becomes an `unreadable` row and
+/// an entry of `summary.unreadable`; rows end in index order.
+fn list_missing(
+    spectra: &mut Vec<SpectrumRow>,
+    summary: &mut FileSummary,
+    unplaced: Vec<UnreadableSpectrum>,
+    index: &[String],
+    declared: Option<usize>,
+) {
+    let mut listed: std::collections::HashSet<usize> = spectra.iter().map(|r| r.index).collect();
+    let missing: std::collections::HashSet<&str> =
+        summary.missing_from_index.iter().map(String::as_str).collect();
+    let position: std::collections::HashMap<&str, usize> =
+        index.iter().enumerate().map(|(i, id)| (id.as_str(), i)).collect();
+    let mut found = Vec::new();
+    for mut u in unplaced {
+        let at = u.id.as_deref().and_then(|id| position.get(id).copied());
+        let i = at.unwrap_or(spectra.len() + found.len());
+        u.index = Some(i);
+        listed.insert(i);
+        found.push(u);
+    }
+    for (i, id) in index.iter().enumerate() {
+        if missing.contains(id.as_str()) {
+            let error = "listed in the file's index but not found in the document".to_owned();
+            found.push(UnreadableSpectrum { index: Some(i), id: Some(id.clone()), error });
+            listed.insert(i);
+        }
+    }
+    if let Some(count) = declared {
+        let error =
+            format!("not read: reading stopped before this spectrum (spectrumList count {count})");
+        let unread = (0..count).filter(|i| !listed.contains(i)).take(MAX_MISSING_LISTED);
+        found.extend(unread.map(|i| UnreadableSpectrum {
+            index: Some(i),
+            id: None,
+            error: error.clone(),
+        }));
+    }
+    for u in found {
+        spectra.push(SpectrumRow::unreadable(u.index.unwrap_or(0), &u));
+        summary.unreadable.push(u);
+    }
+    spectra.sort_by_key(|r| r.index);
 }
 
 #[cfg(test)]

@@ -250,6 +250,29 @@ fn index_offset_pointing_elsewhere() {
 }
 
 #[test]
+fn index_list_deeply_nested_or_oversized_is_refused_by_random_access() {
+    // What follows <indexList> is read by the random-access reader alone: a crafted file must
+    // not make that read unbounded (in nesting or in bytes).
+    let doc = document(true);
+    let list = doc.find("<indexList").unwrap();
+    let open_end = list + doc[list..].find('>').unwrap() + 1;
+    let nested = format!("{}{}{}", &doc[..open_end], "<a>".repeat(100_000), &doc[open_end..]);
+    let e = IndexedReader::new(Cursor::new(nested.into_bytes())).err().expect("refused");
+    assert!(matches!(e.kind(), ErrorKind::LimitExceeded { limit: 64, .. }), "{e}");
+    assert!(e.to_string().contains("max_depth"), "{e}");
+    let padded = format!("{}{}{}", &doc[..open_end], " ".repeat(100_000), &doc[open_end..]);
+    let options = plain().max_event_bytes(50_000);
+    let e = IndexedReader::with_options(Cursor::new(padded.clone().into_bytes()), options)
+        .err()
+        .expect("refused");
+    assert!(matches!(e.kind(), ErrorKind::LimitExceeded { limit: 50_000, .. }), "{e}");
+    assert!(e.to_string().contains("max_event_bytes"), "{e}");
+    // Within the limits the same padded file reads.
+    let r = IndexedReader::new(Cursor::new(padded.into_bytes())).unwrap();
+    assert_eq!(r.len(), 3);
+}
+
+#[test]
 fn checksum_mismatch() {
     let doc = document(true);
     // Change one digit of a value (same length, so offsets stay right).

@@ -21,7 +21,13 @@ const DOCS: &[(&str, &str)] = &[
     ("reader.verify_checksum", "verify the SHA-1 fileChecksum of indexed files"),
     ("reader.max_event_bytes", "ceiling on one XML tag or one <binary> text, bytes"),
     ("reader.max_array_length", "ceiling on a declared array length, values"),
-    ("reader.max_depth", "ceiling on element nesting inside a spectrum"),
+    ("reader.max_depth", "ceiling on element nesting (inside a spectrum, and in the document)"),
+    ("reader.max_spectrum_bytes", "ceiling on the <binary> text held for one spectrum, bytes"),
+    (
+        "reader.max_elements",
+        "ceiling on the elements of one spectrum (referenced cvParams included)",
+    ),
+    ("reader.max_gzip_ratio", "ceiling on decompressed/compressed size of .gz input (bombs)"),
     (
         "pipeline.in_flight",
         "spectra alive at once; bounds memory together with the largest spectrum",

@@ -30,8 +30,9 @@ use std::str::FromStr;
 use super::elements::{ELEMENTS, Element, Isotope};
 use crate::{Error, ErrorKind, Result};
 
-/// Largest count the parser accepts after one symbol or group.
-pub const MAX_COUNT: u32 = 100_000;
+/// Largest count the parser accepts after one symbol or group: as many atoms as one element
+/// may hold, so that every formula this module writes (Hill notation) reads back.
+pub const MAX_COUNT: u32 = MAX_ATOMS;
 /// Largest number of atoms of one element (or isotope) in a formula.
 pub const MAX_ATOMS: u32 = 1_000_000;
 /// Deepest nesting of parentheses the parser accepts.
@@ -547,7 +548,7 @@ mod tests {
     fn errors_name_the_place() {
         assert_eq!(parse_err("C6Xy2"), (2, "unknown element 'Xy'".into()));
         assert_eq!(parse_err("C0H4"), (1, "count of zero".into()));
-        assert_eq!(parse_err("C1000000"), (1, format!("count larger than {MAX_COUNT}")));
+        assert_eq!(parse_err("C1000001"), (1, format!("count larger than {MAX_COUNT}")));
         assert_eq!(parse_err("C6(H2"), (2, "'(' without matching ')'".into()));
         assert_eq!(parse_err("C6H2)"), (4, "')' without matching '('".into()));
         assert_eq!(parse_err(""), (0, "empty formula".into()));

@@ -243,8 +243,8 @@ pub fn bare_decode(
     // Typical mzML arrays compress 1.2 to 3 times: start at 4 times, grow if needed.
     let guess = scratch.len().saturating_mul(4).max(out.len());
     INFLATER.with(|cell| match cell.try_borrow_mut() {
-        Ok(mut inflater) => inflate_into(&mut inflater, scratch, guess, out),
-        Err(_) => inflate_into(&mut Decompressor::new(), scratch, guess, out),
+        Ok(mut inflater) => inflate_into(&mut inflater, scratch, guess, usize::MAX, out),
+        Err(_) => inflate_into(&mut Decompressor::new(), scratch, guess, usize::MAX, out),
     })
 }
 
@@ -253,6 +253,10 @@ pub fn bare_decode(
 /// Deflate (RFC 1951) codes at most 258 bytes per match in no fewer than 2 bits, so a stream
 /// inflates to at most about 1032 times its size; the zlib wrapper (RFC 1950) only adds bytes.
 pub const MAX_INFLATE_RATIO: usize = 1032;
+
+/// Bytes a zlib stream may inflate to beyond what its declared array length needs, so that a
+/// wrong declared length reports the true count (larger streams are refused unread).
+pub const INFLATE_SLACK: usize = 16 << 20;
 
 /// Per-thread buffers kept between calls of [`decode_into`] larger than this are released.
 const KEEP_SCRATCH_BYTES: usize = 32 << 20;
@@ -289,14 +293,18 @@ fn decode_with(
 ) -> Result<()> {
     base64_decode(base64, &mut scratch.raw)?;
     let bytes: &[u8] = if encoding.compression.has_zlib() {
-        let guess = decoded_size_bound(encoding, expected_len);
+        // The declared length bounds the inflated size: a stream that inflates far beyond it
+        // is wrong whatever it holds, so a zlib bomb never allocates more than the declared
+        // length needs (itself capped by `ReaderOptions::max_array_length`) or
+        // `INFLATE_SLACK`, whichever is larger. Within the slack, a length mismatch still
+        // reports the true count.
+        let bound = decoded_size_bound(encoding, expected_len);
+        let ceiling = bound.max(INFLATE_SLACK);
+        let raw = &scratch.raw;
+        let inflated = &mut scratch.inflated;
         let n = INFLATER.with(|cell| match cell.try_borrow_mut() {
-            Ok(mut inflater) => {
-                inflate_into(&mut inflater, &scratch.raw, guess, &mut scratch.inflated)
-            }
-            Err(_) => {
-                inflate_into(&mut Decompressor::new(), &scratch.raw, guess, &mut scratch.inflated)
-            }
+            Ok(mut inflater) => inflate_into(&mut inflater, raw, bound, ceiling, inflated),
+            Err(_) => inflate_into(&mut Decompressor::new(), raw, bound, ceiling, inflated),
         })?;
         &scratch.inflated[..n]
     } else {
@@ -374,17 +382,19 @@ fn check_len(found: usize, declared: usize) -> Result<()> {
 /// Inflates the zlib stream `input` into `buf[..n]` and returns `n`.
 ///
 /// Tries an output size of `guess` first (known exactly for plain arrays), then grows it four
-/// times at a time up to what the stream can possibly produce (`MAX_INFLATE_RATIO`), so a
-/// hostile declared length never allocates more than that. `buf` is grown, never shrunk.
+/// times at a time up to what the stream can possibly produce (`MAX_INFLATE_RATIO`) or
+/// `ceiling`, whichever is smaller, so neither a hostile declared length nor a zlib bomb
+/// allocates more than that. `buf` is grown, never shrunk.
 fn inflate_into(
     inflater: &mut Decompressor,
     input: &[u8],
     guess: usize,
+    ceiling: usize,
     buf: &mut Vec<u8>,
 ) -> Result<usize> {
-    let limit = input.len().saturating_mul(MAX_INFLATE_RATIO).saturating_add(64);
+    let limit = input.len().saturating_mul(MAX_INFLATE_RATIO).saturating_add(64).min(ceiling);
     // A guess beyond what the stream can produce is wrong anyway: start small instead.
-    let mut size = if guess <= limit { guess } else { input.len().saturating_mul(4) };
+    let mut size = if guess <= limit { guess } else { input.len().saturating_mul(4).min(limit) };
     loop {
         if buf.len() < size {
             buf.resize(size, 0);
@@ -398,6 +408,12 @@ fn inflate_into(
             }
             Err(DecompressionError::InsufficientSpace) if size < limit => {
                 size = size.saturating_mul(4).max(4096).min(limit);
+            }
+            Err(DecompressionError::InsufficientSpace) if limit == ceiling => {
+                return Err(Error::new(ErrorKind::Inflate(format!(
+                    "stream inflates beyond {ceiling} bytes, more than the declared array \
+                     length allows"
+                ))));
             }
             Err(DecompressionError::InsufficientSpace) => {
                 return Err(Error::new(ErrorKind::Inflate(format!(

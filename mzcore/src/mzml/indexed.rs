@@ -56,7 +56,7 @@ impl<R: BufRead + Seek> IndexedReader<R> {
         let header = read_header(&mut inner, options)?;
         let list_offset = find_index_list_offset(&mut inner)?;
         inner.seek(SeekFrom::Start(list_offset))?;
-        let index = read_index_list(&mut inner, list_offset)?;
+        let index = read_index_list(&mut inner, list_offset, options)?;
         let by_id = index.iter().enumerate().map(|(i, (id, _))| (id.clone(), i)).collect();
         Ok(IndexedReader { inner, options, header, index, by_id })
     }
@@ -162,19 +162,38 @@ fn find_index_list_offset<R: Read + Seek>(inner: &mut R) -> Result<u64> {
 }
 
 /// Parses `<indexList>` at the current position: the spectrum index's ids and offsets.
-fn read_index_list<R: BufRead>(inner: &mut R, base: u64) -> Result<Vec<(String, u64)>> {
+///
+/// The index list may take at most `options.max_event_bytes` bytes (an index of a million
+/// spectra takes about 60 MB) and nest at most `options.max_depth` deep, so that a crafted
+/// `indexListOffset` cannot make this read unbounded.
+fn read_index_list<R: BufRead>(
+    inner: &mut R,
+    base: u64,
+    options: ReaderOptions,
+) -> Result<Vec<(String, u64)>> {
     use quick_xml::events::Event;
-    let mut xml = quick_xml::Reader::from_reader(inner);
+    let limit = options.max_event_bytes;
+    let mut xml = quick_xml::Reader::from_reader(inner.take(limit));
     let mut buf = Vec::new();
     let mut out = Vec::new();
     let mut in_spectrum_index = false;
     let mut current: Option<String> = None;
     let mut seen_list = false;
+    let mut depth = 0usize;
     loop {
         buf.clear();
         let ev = xml.read_event_into(&mut buf).map_err(|e| {
             Error::at(ErrorKind::Xml(e.to_string()), Position::at_byte(base + xml.error_position()))
         })?;
+        match &ev {
+            Event::Start(_) => depth += 1,
+            Event::End(_) => depth = depth.saturating_sub(1),
+            _ => {}
+        }
+        if depth > options.max_depth {
+            let kind = crate::mzml::reader::depth_exceeded(depth, options.max_depth);
+            return Err(Error::at(kind, Position::at_byte(base + xml.buffer_position())));
+        }
         match ev {
             Event::Start(e) => match e.local_name().as_ref() {
                 b"indexList" => seen_list = true,
@@ -222,6 +241,17 @@ fn read_index_list<R: BufRead>(inner: &mut R, base: u64) -> Result<Vec<(String, 
                 }
             }
             Event::End(e) if e.local_name().as_ref() == b"indexList" => return Ok(out),
+            Event::Eof if xml.buffer_position() >= limit => {
+                return Err(Error::at(
+                    ErrorKind::LimitExceeded {
+                        what: "size of the index list, bytes (reader option max_event_bytes)"
+                            .into(),
+                        found: limit + 1,
+                        limit,
+                    },
+                    Position { field: Some("indexList".into()), ..Position::at_byte(base) },
+                ));
+            }
             Event::Eof => {
                 return Err(Error::at(
                     ErrorKind::Truncated { complete_spectra: 0 },

@@ -28,7 +28,7 @@ use quick_xml::events::{BytesStart, Event};
 pub(crate) use body::Xml;
 use body::{BodyError, BodyLimits, ChromFacts};
 pub(crate) use params::Header;
-use source::{EventTooLarge, Inner, Tracked};
+use source::{EventTooLarge, GzipRatioTooLarge, Inner, Tracked};
 
 use crate::error::{Error, ErrorKind, Position, Result};
 use crate::mzml::binary::BinaryEncoding;
@@ -36,16 +36,38 @@ use crate::mzml::cv;
 use crate::spectrum::{ArrayKind, Chromatogram, Spectrum};
 
 /// Options of a [`Reader`]; build one with [`ReaderOptions::default`] and the setters.
+///
+/// The `max_*` fields are resource limits: input that exceeds one gets a
+/// [`ErrorKind::LimitExceeded`] error naming the limit (by its option name), the byte offset
+/// and the spectrum, and memory stays bounded by the limits whatever the input. A limit met
+/// inside a spectrum costs that spectrum only (the reader goes on with the next), except
+/// nesting beyond `max_depth`; that one, and one met outside a spectrum or by the document as
+/// a whole, ends the document (the tokenizer keeps every open element's name, so stepping
+/// over deep nesting would not stay bounded).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub struct ReaderOptions {
     /// Compute the SHA-1 of the document and compare it with `fileChecksum`.
     pub verify_checksum: bool,
-    /// Ceiling on the bytes of one XML event (a tag or one run of text, e.g. one `<binary>`).
+    /// Ceiling on the bytes of one XML event (a tag with its attributes, or one run of text,
+    /// e.g. one `<binary>`). Default 256 MiB.
     pub max_event_bytes: u64,
-    /// Ceiling on element nesting inside a spectrum.
+    /// Ceiling on element nesting inside a spectrum, and on nesting in the document as a
+    /// whole. Default 64.
     pub max_depth: usize,
-    /// Ceiling on a declared array length (number of values).
+    /// Ceiling on a declared array length (number of values). Default 50 million.
     pub max_array_length: usize,
+    /// Ceiling on the encoded array text held for one spectrum (all its `<binary>` texts
+    /// together, however split by comments). Default 512 MiB.
+    pub max_spectrum_bytes: u64,
+    /// Ceiling on the elements of one spectrum (cvParams and userParams included, each
+    /// referenced param group counted with all its cvParams), and on the cvParams of one
+    /// `referenceableParamGroup`. Default 100,000.
+    pub max_elements: usize,
+    /// Ceiling on the ratio of decompressed to compressed bytes of gzip input, checked once
+    /// 64 MiB have been decompressed (a gzip bomb). Default 100 (mzML files compress 3 to 6
+    /// times; a bomb of repeated spectra 40 to 170 times, one of zeros 1000 times); `u64::MAX`
+    /// turns it off.
+    pub max_gzip_ratio: u64,
 }
 
 impl Default for ReaderOptions {
@@ -55,6 +77,9 @@ impl Default for ReaderOptions {
             max_event_bytes: 256 << 20,
             max_depth: 64,
             max_array_length: 50_000_000,
+            max_spectrum_bytes: 512 << 20,
+            max_elements: 100_000,
+            max_gzip_ratio: 100,
         }
     }
 }
@@ -78,9 +103,27 @@ impl ReaderOptions {
         self
     }
 
-    /// Sets the ceiling on element nesting inside a spectrum.
+    /// Sets the ceiling on element nesting (inside a spectrum, and in the whole document).
     pub fn max_depth(mut self, depth: usize) -> Self {
         self.max_depth = depth;
+        self
+    }
+
+    /// Sets the ceiling on the encoded array text held for one spectrum.
+    pub fn max_spectrum_bytes(mut self, bytes: u64) -> Self {
+        self.max_spectrum_bytes = bytes;
+        self
+    }
+
+    /// Sets the ceiling on the elements of one spectrum and the cvParams of one param group.
+    pub fn max_elements(mut self, elements: usize) -> Self {
+        self.max_elements = elements;
+        self
+    }
+
+    /// Sets the ceiling on the decompression ratio of gzip input.
+    pub fn max_gzip_ratio(mut self, ratio: u64) -> Self {
+        self.max_gzip_ratio = ratio;
         self
     }
 }
@@ -153,6 +196,7 @@ pub struct Reader<R: BufRead> {
     base: u64,
     last_start: Option<u64>,
     header_only: bool,
+    depth: usize,
 }
 
 impl Reader<BufReader<File>> {
@@ -178,7 +222,12 @@ impl<R: BufRead> Reader<R> {
     pub fn with_options(inner: R, options: ReaderOptions) -> Result<Self> {
         let inner = Inner::detect(inner)?;
         let gzip = inner.is_gzip();
-        let tracked = Tracked::new(inner, options.verify_checksum, options.max_event_bytes);
+        let tracked = Tracked::new(
+            inner,
+            options.verify_checksum,
+            options.max_event_bytes,
+            options.max_gzip_ratio,
+        );
         let mut xml = quick_xml::Reader::from_reader(tracked);
         let cfg = xml.config_mut();
         cfg.trim_text(false);
@@ -208,6 +257,7 @@ impl<R: BufRead> Reader<R> {
             base: 0,
             last_start: None,
             header_only: false,
+            depth: 0,
         })
     }
 
@@ -279,6 +329,8 @@ impl<R: BufRead> Reader<R> {
         BodyLimits {
             max_depth: self.options.max_depth,
             max_array_length: self.options.max_array_length,
+            max_spectrum_bytes: self.options.max_spectrum_bytes,
+            max_elements: self.options.max_elements,
             base: self.base,
         }
     }
@@ -291,6 +343,9 @@ impl<R: BufRead> Reader<R> {
         header: Header,
         base: u64,
     ) -> Result<Self> {
+        // A checksum covers the whole document: a reader that starts in the middle cannot
+        // verify it, so it does not hash (nor start a hashing thread) at all.
+        let options = options.verify_checksum(false);
         let mut r = Reader::with_options(inner, options)?;
         r.header = header;
         r.base = base;
@@ -344,6 +399,14 @@ impl<R: BufRead> Reader<R> {
                 }
                 Event::Start(e) => {
                     let local = e.local_name().as_ref().to_vec();
+                    // Elements read to their end tag by a helper do not stay open here.
+                    if !reads_to_end(&local) {
+                        self.depth += 1;
+                        if self.depth > self.options.max_depth {
+                            let kind = depth_exceeded(self.depth, self.options.max_depth);
+                            return Err(self.fatal(kind, pos));
+                        }
+                    }
                     let owned = e.into_owned();
                     if let Some(done) = self.start(&local, &owned, pos, false, spectrum) {
                         return done;
@@ -356,12 +419,15 @@ impl<R: BufRead> Reader<R> {
                         return done;
                     }
                 }
-                Event::End(e) => match e.local_name().as_ref() {
-                    b"spectrumList" => self.in_spectrum_list = false,
-                    b"indexedmzML" => self.root_closed = true,
-                    b"mzML" if !self.header.indexed => self.root_closed = true,
-                    _ => {}
-                },
+                Event::End(e) => {
+                    self.depth = self.depth.saturating_sub(1);
+                    match e.local_name().as_ref() {
+                        b"spectrumList" => self.in_spectrum_list = false,
+                        b"indexedmzML" => self.root_closed = true,
+                        b"mzML" if !self.header.indexed => self.root_closed = true,
+                        _ => {}
+                    }
+                }
                 Event::Text(t)
                     if self.state == State::Start && !t.iter().all(u8::is_ascii_whitespace) =>
                 {
@@ -512,6 +578,10 @@ impl<R: BufRead> Reader<R> {
             Err(BodyError::Eof(at)) => Err(self
                 .fatal(ErrorKind::Truncated { complete_spectra: self.complete_spectra }, at)
                 .in_spectrum(index, &spectrum.meta.id.clone())),
+            Err(BodyError::Fatal(err, at)) => {
+                self.state = State::Finished;
+                Err(err.at_byte(at).in_spectrum(index, &spectrum.meta.id.clone()))
+            }
         }
     }
 
@@ -539,6 +609,10 @@ impl<R: BufRead> Reader<R> {
             Err(BodyError::Eof(at)) => {
                 let kind = ErrorKind::Truncated { complete_spectra: self.complete_spectra };
                 return Err(with_id(self.fatal(kind, at)));
+            }
+            Err(BodyError::Fatal(err, at)) => {
+                self.state = State::Finished;
+                return Err(with_id(err.at_byte(at)));
             }
         }
         if !facts.is_tic || self.tic.is_some() {
@@ -571,12 +645,30 @@ impl<R: BufRead> Reader<R> {
         let id = params::attr(e, b"id", latin1)?.unwrap_or_default();
         let mut group = Vec::new();
         let mut depth = 0usize;
+        let (max_depth, max_elements) = (self.options.max_depth, self.options.max_elements);
         loop {
             self.buf.clear();
+            let at = self.base + self.xml.buffer_position();
             match self.next_event()? {
-                Event::Start(_) => depth += 1,
+                Event::Start(_) => {
+                    depth += 1;
+                    if depth > max_depth {
+                        return Err(self.fatal(depth_exceeded(depth, max_depth), at));
+                    }
+                }
                 Event::Empty(ev) if ev.local_name().as_ref() == b"cvParam" => {
                     group.push(params::CvParam::from_element(&ev)?.to_owned_param(latin1)?);
+                    if group.len() > max_elements {
+                        let kind = ErrorKind::LimitExceeded {
+                            what: format!(
+                                "cvParams in referenceableParamGroup '{id}' (reader option \
+                                 max_elements)"
+                            ),
+                            found: group.len() as u64,
+                            limit: max_elements as u64,
+                        };
+                        return Err(self.fatal(kind, at));
+                    }
                 }
                 Event::End(_) if depth == 0 => break,
                 Event::End(_) => depth -= 1,
@@ -594,14 +686,19 @@ impl<R: BufRead> Reader<R> {
         let mut ionization = None;
         let mut in_source = false;
         let mut depth = 0usize;
+        let max_depth = self.options.max_depth;
         loop {
             self.buf.clear();
+            let at = self.base + self.xml.buffer_position();
             let ev = self.next_event()?;
             match ev {
                 Event::Start(s) => {
                     depth += 1;
                     if s.local_name().as_ref() == b"source" {
                         in_source = true;
+                    }
+                    if depth > max_depth {
+                        return Err(self.fatal(depth_exceeded(depth, max_depth), at));
                     }
                 }
                 Event::End(s) if depth == 0 => {
@@ -649,8 +746,11 @@ impl<R: BufRead> Reader<R> {
         let name = params::attr(e, b"name", false)?.unwrap_or_default();
         let keep = name == "spectrum";
         let latin1 = self.header.latin1;
+        let mut depth = 0usize;
+        let max_depth = self.options.max_depth;
         loop {
             self.buf.clear();
+            let at = self.base + self.xml.buffer_position();
             let ev = self.next_event()?;
             match ev {
                 Event::Start(s) if s.local_name().as_ref() == b"offset" => {
@@ -666,7 +766,14 @@ impl<R: BufRead> Reader<R> {
                         self.spectrum_index.push((id, off));
                     }
                 }
+                Event::Start(_) => {
+                    depth += 1;
+                    if depth > max_depth {
+                        return Err(self.fatal(depth_exceeded(depth, max_depth), at));
+                    }
+                }
                 Event::End(s) if s.local_name().as_ref() == b"index" => return Ok(()),
+                Event::End(_) => depth = depth.saturating_sub(1),
                 Event::Eof => return Err(self.truncated()),
                 _ => {}
             }
@@ -803,6 +910,29 @@ impl<R: BufRead> Reader<R> {
     }
 }
 
+/// Elements whose start tag hands over to a helper that reads up to their end tag.
+fn reads_to_end(local: &[u8]) -> bool {
+    matches!(
+        local,
+        b"spectrum"
+            | b"chromatogram"
+            | b"referenceableParamGroup"
+            | b"instrumentConfiguration"
+            | b"index"
+            | b"indexListOffset"
+            | b"fileChecksum"
+    )
+}
+
+/// The error for nesting deeper than `limit`.
+pub(crate) fn depth_exceeded(depth: usize, limit: usize) -> ErrorKind {
+    ErrorKind::LimitExceeded {
+        what: "element nesting depth (reader option max_depth)".into(),
+        found: depth as u64,
+        limit: limit as u64,
+    }
+}
+
 /// Reads one event, mapping a tokenizer error to ours.
 fn next_event<'b, R: BufRead>(
     xml: &mut Xml<R>,
@@ -836,9 +966,20 @@ fn xml_error(e: quick_xml::Error, at: u64, limit: u64, complete: usize) -> Error
         quick_xml::Error::Io(io) => {
             if io.get_ref().is_some_and(|inner| inner.is::<EventTooLarge>()) {
                 ErrorKind::LimitExceeded {
-                    what: "size of one XML element or text run (bytes)".into(),
+                    what: "size of one XML element or text run, bytes (reader option \
+                           max_event_bytes)"
+                        .into(),
                     found: limit + 1,
                     limit,
+                }
+            } else if let Some(g) =
+                io.get_ref().and_then(|inner| inner.downcast_ref::<GzipRatioTooLarge>())
+            {
+                ErrorKind::LimitExceeded {
+                    what: "decompression ratio of the gzip input (reader option max_gzip_ratio)"
+                        .into(),
+                    found: g.ratio,
+                    limit: g.limit,
                 }
             } else if io.kind() == std::io::ErrorKind::UnexpectedEof {
                 ErrorKind::Truncated { complete_spectra: complete }

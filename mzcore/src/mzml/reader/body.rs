@@ -25,6 +25,8 @@ pub(crate) type Xml<R> = quick_xml::Reader<Tracked<R>>;
 pub(crate) struct BodyLimits {
     pub max_depth: usize,
     pub max_array_length: usize,
+    pub max_spectrum_bytes: u64,
+    pub max_elements: usize,
     /// Offset of the tokenizer's byte 0 in the document.
     pub base: u64,
 }
@@ -112,6 +114,10 @@ struct Body<'h> {
     config_ref: Option<String>,
     chrom: ChromFacts,
     is_chromatogram: bool,
+    /// Elements seen so far (referenced param groups counted with their cvParams).
+    elements: usize,
+    /// Bytes of `<binary>` text held so far.
+    held: u64,
 }
 
 /// Parses the body of the element whose start tag `start` has just been read, up to and
@@ -158,6 +164,8 @@ pub(crate) fn parse_body<R: BufRead>(
         config_ref: None,
         chrom: ChromFacts { is_tic: false, time_factor: 1.0 },
         is_chromatogram: chrom.is_some(),
+        elements: 0,
+        held: 0,
     };
     let element = if body.is_chromatogram { "chromatogram" } else { "spectrum" };
     // Attributes: id, index, defaultArrayLength are required (mzML 1.1.0 XSD, SpectrumType).
@@ -219,6 +227,10 @@ pub(crate) enum BodyError {
     Xml(quick_xml::Error, u64),
     /// The input ended inside the element.
     Eof(u64),
+    /// The element broke a limit after which the document cannot be read on within bounded
+    /// memory (nesting beyond `max_depth`: the tokenizer keeps the name of every open element,
+    /// so stepping over the rest would grow with the input). At this byte offset.
+    Fatal(Error, u64),
 }
 
 fn missing_attr(element: &str, attribute: &str) -> Error {
@@ -249,6 +261,12 @@ impl Body<'_> {
                     return Err(BodyError::Xml(e, at));
                 }
             };
+            if matches!(event, Event::Start(_) | Event::Empty(_)) {
+                self.elements += 1;
+                if let Some(e) = self.over_elements() {
+                    return Err(self.give_up(e, pos));
+                }
+            }
             match event {
                 Event::Start(e) => {
                     let local = e.local_name();
@@ -256,15 +274,8 @@ impl Body<'_> {
                     self.open(&e, tag, pos, out);
                     self.stack.push((tag, ShortName::of(local.as_ref())));
                     if self.stack.len() > self.limits.max_depth {
-                        self.note(
-                            Error::new(ErrorKind::LimitExceeded {
-                                what: "element nesting depth".into(),
-                                found: self.stack.len() as u64,
-                                limit: self.limits.max_depth as u64,
-                            }),
-                            pos,
-                        );
-                        return Err(BodyError::Element(self.first_error.take().unwrap()));
+                        let kind = super::depth_exceeded(self.stack.len(), self.limits.max_depth);
+                        return Err(BodyError::Fatal(Error::new(kind), pos));
                     }
                 }
                 Event::Empty(e) => {
@@ -274,7 +285,12 @@ impl Body<'_> {
                             Ok(p) => self.apply(&p, pos, out),
                             Err(err) => self.note(err, pos),
                         },
-                        b"referenceableParamGroupRef" => self.apply_group(&e, pos, out),
+                        b"referenceableParamGroupRef" => {
+                            self.apply_group(&e, pos, out);
+                            if let Some(e) = self.over_elements() {
+                                return Err(self.give_up(e, pos));
+                            }
+                        }
                         b"userParam" => self.user_param(&e),
                         _ => {
                             let tag = Tag::of(local.as_ref());
@@ -284,6 +300,20 @@ impl Body<'_> {
                     }
                 }
                 Event::Text(t) if self.stack.last().map(|t| t.0) == Some(Tag::Binary) => {
+                    let kept = self.array.as_ref().and_then(|a| a.slot).is_some();
+                    self.held += if kept { t.len() as u64 } else { 0 };
+                    if self.held > self.limits.max_spectrum_bytes {
+                        let e = Error::new(ErrorKind::LimitExceeded {
+                            what: "encoded array text held for one spectrum, bytes (reader \
+                                   option max_spectrum_bytes)"
+                                .into(),
+                            found: self.held,
+                            limit: self.limits.max_spectrum_bytes,
+                        });
+                        // Release what this element holds: the caller skips it anyway.
+                        out.arrays.iter_mut().for_each(|a| a.base64 = Vec::new());
+                        return Err(self.give_up(e.in_field("binary"), pos));
+                    }
                     self.binary_text(&t, out);
                 }
                 Event::End(e) => {
@@ -324,6 +354,26 @@ impl Body<'_> {
                 _ => {}
             }
         }
+    }
+
+    /// The error for more elements than allowed, if there are.
+    fn over_elements(&self) -> Option<Error> {
+        (self.elements > self.limits.max_elements).then(|| {
+            Error::new(ErrorKind::LimitExceeded {
+                what: "elements in one spectrum, referenced cvParams included (reader option \
+                       max_elements)"
+                    .into(),
+                found: self.elements as u64,
+                limit: self.limits.max_elements as u64,
+            })
+        })
+    }
+
+    /// Stops parsing this element at a limit: the element is malformed, and the reader goes
+    /// on from here at the document level (where whatever is left of it is skipped).
+    fn give_up(&mut self, e: Error, pos: u64) -> BodyError {
+        self.note(e, pos);
+        BodyError::Element(self.first_error.take().expect("just noted"))
     }
 
     fn open(&mut self, e: &BytesStart<'_>, tag: Tag, pos: u64, out: &mut Spectrum) {
@@ -374,7 +424,7 @@ impl Body<'_> {
         let array_at = st.offset;
         let encoding = if length > max_len {
             Err(Error::new(ErrorKind::LimitExceeded {
-                what: "declared array length".into(),
+                what: "declared array length, values (reader option max_array_length)".into(),
                 found: length as u64,
                 limit: max_len as u64,
             }))
@@ -471,6 +521,10 @@ impl Body<'_> {
         match params::attr(e, b"ref", header.latin1) {
             Ok(Some(r)) => match header.param_groups.get(&r) {
                 Some(group) => {
+                    self.elements = self.elements.saturating_add(group.len());
+                    if self.elements > self.limits.max_elements {
+                        return;
+                    }
                     for p in group {
                         self.apply(&CvParam::from_owned(p), pos, out);
                     }
