@@ -516,29 +516,16 @@ impl QcRules {
         let s = &report.summary;
         let readable: Vec<_> = report.spectra.iter().filter(|r| r.status == "ok").collect();
 
-        if let Some(r) = self.min_spectra.as_ref().filter(|r| applies(&r.files, name)) {
-            let n = s.spectra as u64;
-            let msg = format!("{n} readable spectra; at least {} required", r.limit);
-            push(
-                "min_spectra".into(),
-                n >= r.limit,
-                r.on_breach,
-                n.to_string(),
-                r.limit.to_string(),
-                msg,
-            );
-        }
-        if let Some(r) = self.min_ms1.as_ref().filter(|r| applies(&r.files, name)) {
-            let n = s.ms1 as u64;
-            let msg = format!("{n} readable MS1 spectra; at least {} required", r.limit);
-            push(
-                "min_ms1".into(),
-                n >= r.limit,
-                r.on_breach,
-                n.to_string(),
-                r.limit.to_string(),
-                msg,
-            );
+        // Count rules: the file's count against the least number required.
+        let counts = [
+            ("min_spectra", &self.min_spectra, s.spectra, "readable spectra"),
+            ("min_ms1", &self.min_ms1, s.ms1, "readable MS1 spectra"),
+        ];
+        for (rule, r, n, what) in counts {
+            let Some(r) = r.as_ref().filter(|r| applies(&r.files, name)) else { continue };
+            let n = n as u64;
+            let msg = format!("{n} {what}; at least {} required", r.limit);
+            push(rule.into(), n >= r.limit, r.on_breach, n.to_string(), r.limit.to_string(), msg);
         }
         if let Some(r) = self.rt_coverage.as_ref().filter(|r| applies(&r.files, name)) {
             let limit = format!("{} to {}", num(r.from_min), num(r.to_min));
