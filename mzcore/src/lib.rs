@@ -35,6 +35,7 @@
 
 pub mod centroid;
 pub mod chem;
+pub mod compound;
 pub mod error;
 pub mod feature;
 pub mod flag;

@@ -42,7 +42,7 @@
 //! rounded lies within `0.05 + 0.0004 R + u` of a half-integer, with `u` the m/z uncertainty
 //! (the tolerance at high resolution, 0.15 u at unit resolution) times z.
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::centroid::Centroid;
 use crate::chem::IonType;
@@ -63,7 +63,7 @@ pub const DEFECT_PER_U: f64 = 0.0005;
 pub const DEFECT_SPREAD_PER_U: f64 = 0.0004;
 
 /// The nitrogen-rule call.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
 pub enum OddNominal {
     /// Odd nominal mass: an odd number of nitrogen atoms.
