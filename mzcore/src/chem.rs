@@ -7,6 +7,8 @@
 //!   monoisotopic / average / nominal mass and the nitrogen rule.
 //! - [`ion`]: [`IonType`] (`[M+H]+` or `M+H`, ...) and ion m/z with electron masses.
 //! - [`isotopes`]: exact fine structure, aggregation to a resolving power, nominal shells.
+//! - [`formula_search`]: formula candidates for a neutral mass with fixed Cl/Br counts,
+//!   filtered by heuristic rules and ranked by mass error and isotope-pattern fit.
 //! - [`halogen`]: the precomputed Cl_n Br_m cluster model with its background spread, and the
 //!   M+2 spacings that tell halogens from S, Si, O and 13C2.
 //!
@@ -31,6 +33,7 @@
 
 pub mod elements;
 pub mod formula;
+pub mod formula_search;
 pub mod halogen;
 pub mod ion;
 pub mod isotopes;
