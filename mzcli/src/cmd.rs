@@ -3,6 +3,7 @@
 pub mod check;
 pub mod config;
 pub mod demo;
+pub mod formula;
 pub mod info;
 pub mod list;
 pub mod mass;

@@ -82,6 +82,11 @@ every file ok; 1: some file failed, was partial or skipped; 2: usage error or re
     /// Monoisotopic, nominal and average mass, ion m/z and nitrogen-rule parity of a formula.
     #[command(after_help = "Examples:\n  mzsift mass C8H10N4O2 --ion M+H\n  mzsift mass C12Br10O")]
     Mass(cmd::mass::MassArgs),
+    /// Formula candidates (C H N O S P ...) for a neutral mass or ion m/z with fixed Cl/Br.
+    #[command(
+        after_help = "Examples:\n  mzsift formula 195.92495 --neutral --cl 3\n  mzsift formula 288.0669 --ion M+H --cl 1 --top 5"
+    )]
+    Formula(cmd::formula::FormulaArgs),
     /// Writes the demo batch (or any scenario) as mzML with ground-truth TSVs.
     #[command(
         after_help = "Examples:\n  mzsift demo demo-batch\n  mzsift demo big --spectra 4000 --points 40000"
@@ -109,6 +114,7 @@ fn main() -> ExitCode {
         Command::Peaks(a) => cmd::peaks::run(a, &mut out),
         Command::Pattern(a) => output::input_error_is_usage(cmd::pattern::run(a, &mut out)),
         Command::Mass(a) => output::input_error_is_usage(cmd::mass::run(a, &mut out)),
+        Command::Formula(a) => output::input_error_is_usage(cmd::formula::run(a, &mut out)),
         Command::Demo(a) => cmd::demo::run(a, &mut out),
     };
     let flushed = std::io::Write::flush(&mut out).map_err(anyhow::Error::from);

@@ -16,7 +16,7 @@ use std::path::PathBuf;
 
 use mzcore::chem::formula_search::{self, ElementSet, FormulaQuery, ObservedCluster, ObservedPeak};
 use mzcore::chem::isotopes::{self, Resolution};
-use mzcore::chem::{ELECTRON_MASS, Formula, IonType, Parity};
+use mzcore::chem::{Formula, IonType, Parity};
 use mzcore::synth::rng::{Rng, hash_text};
 
 struct Row {
@@ -124,10 +124,10 @@ fn simulate(r: &Row) -> (ObservedCluster, f64) {
         peaks.push(ObservedPeak { mz, intensity });
     }
     let mono_mz = mono_mz.expect("M above the detection limit at S/N 50");
-    let z = ion.charge();
-    let neutral = mono_mz * f64::from(z.abs()) + f64::from(z) * ELECTRON_MASS - ion.adduct_mass();
+    let neutral = ion.mass_from_mz(mono_mz);
+    let charge = ion.charge();
     let cluster =
-        ObservedCluster { peaks, mono_mz, charge: z, resolving_power: RESOLVING_POWER, noise: 1.0 };
+        ObservedCluster { peaks, mono_mz, charge, resolving_power: RESOLVING_POWER, noise: 1.0 };
     (cluster, neutral)
 }
 

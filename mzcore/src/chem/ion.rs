@@ -220,6 +220,13 @@ impl IonType {
         self.mass_to_mz(f64::from(self.molecules) * mass + self.adduct_mass())
     }
 
+    /// Neutral monoisotopic mass of the molecule whose monoisotopic ion has m/z `mz` (the
+    /// inverse of [`IonType::mz_from_mass`]).
+    pub fn mass_from_mz(&self, mz: f64) -> f64 {
+        let atoms = mz * f64::from(self.charge.abs()) + f64::from(self.charge) * ELECTRON_MASS;
+        (atoms - self.adduct_mass()) / f64::from(self.molecules)
+    }
+
     /// m/z of an ion whose atoms (electrons aside) weigh `ion_atoms_mass`.
     pub fn mass_to_mz(&self, ion_atoms_mass: f64) -> f64 {
         (ion_atoms_mass - f64::from(self.charge) * ELECTRON_MASS) / f64::from(self.charge.abs())
@@ -369,5 +376,14 @@ mod tests {
         let dimer = IonType::parse("[2M+Na]+").unwrap();
         assert_eq!(dimer.ion_formula(&Formula::parse("CH4").unwrap()).unwrap().hill(), "C2H8Na");
         assert_eq!(IonType::parse("M+H-H2O").unwrap().charge(), 1);
+    }
+
+    #[test]
+    fn mass_from_mz_inverts_mz_from_mass() {
+        for ion in ["M+H", "M-H", "[M+2H]2+", "[2M+Na]+", "M+.", "M+HCOO"] {
+            let ion = IonType::parse(ion).unwrap();
+            let mz = ion.mz_from_mass(215.093773);
+            assert!((ion.mass_from_mz(mz) - 215.093773).abs() < 1e-9, "{ion}");
+        }
     }
 }

@@ -40,8 +40,10 @@ pub enum Rule {
     HeteroRatio,
     /// Rule 6: the multi-element limits on N, O, P and S found in known compounds.
     ElementProbability,
-    /// Ring-plus-double-bond equivalents (lowest valences) a whole number.
-    RdbeInteger,
+    /// Ring-plus-double-bond equivalents (lowest valences) a whole number, as a neutral
+    /// closed-shell molecule has, and not negative (common practice: expanded S and P
+    /// valences go to S=O and P=O bonds, which the lowest-valence count sees as missing H).
+    Rdbe,
 }
 
 impl Rule {
@@ -53,7 +55,7 @@ impl Rule {
         Rule::HcRatio,
         Rule::HeteroRatio,
         Rule::ElementProbability,
-        Rule::RdbeInteger,
+        Rule::Rdbe,
     ];
 
     /// The rule's name in `rules_passed` and on the command line.
@@ -65,7 +67,7 @@ impl Rule {
             Rule::HcRatio => "hc_ratio",
             Rule::HeteroRatio => "hetero_ratio",
             Rule::ElementProbability => "element_probability",
-            Rule::RdbeInteger => "rdbe_integer",
+            Rule::Rdbe => "rdbe",
         }
     }
 
@@ -264,7 +266,10 @@ pub fn passes(rule: Rule, comp: &Composition, mass: f64, set: &RuleSet) -> bool 
         Rule::HcRatio => hc_ratio(comp, set),
         Rule::HeteroRatio => hetero_ratio(comp, set.ratio_range),
         Rule::ElementProbability => element_probability(comp),
-        Rule::RdbeInteger => comp.rdbe().fract() == 0.0,
+        Rule::Rdbe => {
+            let r = comp.rdbe();
+            r >= 0.0 && r.fract() == 0.0
+        }
     }
 }
 
@@ -388,8 +393,13 @@ mod tests {
         assert_eq!(comp("C5H5N").rdbe(), 4.0);
         // A radical gives a half-integer: CH3 0.5; aniline C6H7N 4, C6H6N 4.5.
         assert_eq!(comp("CH3").rdbe(), 0.5);
-        assert!(pass(Rule::RdbeInteger, "C6H7N"));
-        assert!(!pass(Rule::RdbeInteger, "C6H6N"));
+        assert!(pass(Rule::Rdbe, "C6H7N"));
+        assert!(!pass(Rule::Rdbe, "C6H6N"));
+        // Negative: CH6 (-1) fails; sulfates and phosphates stay at 0 or above: TCEP
+        // C6H12Cl3O4P 0, methanesulfonic acid CH4O3S 0.
+        assert!(!pass(Rule::Rdbe, "CH6"));
+        assert!(pass(Rule::Rdbe, "C6H12Cl3O4P"));
+        assert!(pass(Rule::Rdbe, "CH4O3S"));
     }
 
     #[test]
