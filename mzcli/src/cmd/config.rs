@@ -75,6 +75,35 @@ const DOCS: &[(&str, &str)] = &[
     ),
     ("flag.feature_min_scans", "least consecutive MS1 scans for a feature"),
     ("flag.feature_max_gap", "MS1 scans that may be missing inside a feature"),
+    (
+        "flag.side_lobe_ratio",
+        "a candidate beside a peak this many times taller whose M+1/M+2 is that peak's isotopologue is a side lobe",
+    ),
+    ("flag.side_lobe_fwhm", "... when within this many FWHM of it (0 turns the rule off)"),
+    ("compound.apex_tolerance_scans", "co-elution: apexes at most this many MS1 scans apart"),
+    ("compound.min_correlation", "co-elution: least Pearson r of two traces over shared scans"),
+    ("compound.min_shared_scans", "co-elution: least shared scans for the correlation"),
+    ("compound.tolerance_ppm", "adduct and loss spacings at high resolution, ppm"),
+    ("compound.tolerance_da", "adduct and loss spacings at unit resolution, u"),
+    (
+        "compound.adducts_positive",
+        "adducts and multimers of positive ions; the first is taken for a lone ion",
+    ),
+    (
+        "compound.adducts_negative",
+        "adducts and multimers of negative ions; the first is taken for a lone ion",
+    ),
+    ("compound.losses", "neutral losses of in-source and EI fragments, as formulas"),
+    ("compound.max_loss_steps", "losses that may follow each other (1 or 2)"),
+    ("compound.min_support", "halogen call: least fraction of the feature's scans that agree"),
+    ("compound.min_m2_correlation", "halogen call: least Pearson r of the M+2 trace with M"),
+    ("compound.m2_trace_min_scans", "agreeing scans needed before the M+2 trace is tested"),
+    (
+        "compound.background_fraction",
+        "a feature longer than this fraction of the run is a background level ...",
+    ),
+    ("compound.background_peak_ratio", "... unless its apex stands this many times its median"),
+    ("compound.min_halogen_probability", "halogen call: least calibrated probability"),
 ];
 
 /// The TOML text with a `# ...` comment line above every documented key.
