@@ -92,6 +92,8 @@ pub struct ScreenConfig {
     pub centroid: CentroidParams,
     /// Halogen and nitrogen-rule flagging, and feature grouping.
     pub flag: FlagSettings,
+    /// What the run writes besides the tables (`[report]`).
+    pub report: crate::report::ReportSettings,
 }
 
 impl ScreenConfig {

@@ -75,6 +75,10 @@ const DOCS: &[(&str, &str)] = &[
     ),
     ("flag.feature_min_scans", "least consecutive MS1 scans for a feature"),
     ("flag.feature_max_gap", "MS1 scans that may be missing inside a feature"),
+    (
+        "report.html",
+        "write OUTDIR/report.html at the end of a run (mzsift report renders it again)",
+    ),
 ];
 
 /// The TOML text with a `# ...` comment line above every documented key.
