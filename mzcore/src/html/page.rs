@@ -271,7 +271,7 @@ fn heat_map(m: &BatchMatrix, blanks: &BTreeSet<String>) -> Markup {
     let top = 170i64;
     let halogenated = order.iter().filter(|&&c| m.compounds[c].halogen).count() as i64;
     let gap = if halogenated > 0 && (halogenated as usize) < order.len() { 8 } else { 0 };
-    let width = left + cw * nf as i64 + 20;
+    let width = (left + cw * nf as i64 + 130).max(left + 64 * 10 + 30);
     let height = top + ch * order.len() as i64 + gap + 70;
     let row_y = |i: usize| top + ch * i as i64 + if (i as i64) >= halogenated { gap } else { 0 };
     let cell_css = format!(".heatmap rect.cell{{width:{}px;height:{}px}}", cw - 1, ch - 1);
@@ -300,7 +300,7 @@ fn heat_map(m: &BatchMatrix, blanks: &BTreeSet<String>) -> Markup {
                         @let v = m.value(c, f);
                         @let x = left + cw * f as i64;
                         @match v {
-                            Some(v) if v > 0.0 => rect.cell class=(format!("q{}", class_of(v, lo, hi))) x=(x) y=(y) {
+                            Some(v) if v > 0.0 => rect class=(format!("cell q{}", class_of(v, lo, hi))) x=(x) y=(y) {
                                 title { (bc.id) " in " (m.files[f]) ": " (number(v)) }
                             },
                             Some(v) => rect.cell fill="#ffffff" x=(x) y=(y) { title { (bc.id) " in " (m.files[f]) ": " (number(v)) } },
