@@ -163,19 +163,19 @@ pub fn lines_plot(
         let mut ticks = String::new();
         let mut triangles = String::new();
         let mut labels = String::new();
-        let mut last_label = i32::MIN;
+        let mut last_label: Option<i32> = None;
         for m in marks.iter().filter(|m| m.rt >= x0 && m.rt <= x1) {
             let (px, py) = chart.backend_coord(&(m.rt, y1));
             if m.strong {
                 let _ = write!(triangles, "M{px},{}l-4,7h8z", py + 1);
-                if px - last_label >= 14 {
+                if last_label.is_none_or(|l| (px - l).abs() >= 14) {
                     let _ = write!(
                         labels,
                         "<text x=\"{px}\" y=\"{}\">{}</text>",
                         py + 18,
                         escape(&m.label)
                     );
-                    last_label = px;
+                    last_label = Some(px);
                 }
             } else {
                 let _ = write!(ticks, "M{px},{py}v6");
