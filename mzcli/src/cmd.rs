@@ -10,6 +10,7 @@ pub mod mass;
 pub mod merge;
 pub mod pattern;
 pub mod peaks;
+pub mod report;
 pub mod run;
 
 use std::io::BufRead;

@@ -54,6 +54,17 @@ every file ok; 1: some file failed, was partial or skipped; 2: usage error or re
         after_help = "Examples:\n  mzsift merge parts/night-01 parts/night-02 -o night\n  mzsift merge jobs/* -o all --allow-mixed"
     )]
     Merge(cmd::merge::MergeArgs),
+    /// Render the batch's HTML page again from the reports in OUTDIR (e.g. after merge).
+    #[command(
+        long_about = "Reads the reports of an output folder of `mzsift run` or `mzsift merge` \
+(batch.tsv, run.json, check.tsv when `mzsift check` wrote there, batch_compounds.tsv, \
+detections.tsv and each file's spectra, compounds, traces and cluster tables) and writes one \
+self-contained HTML page: inline CSS and SVG, no script, nothing fetched. A missing table is \
+named on the page in its place. Exit code 0: written; 2: usage error or the page could not be \
+written.",
+        after_help = "Examples:\n  mzsift report night-report\n  mzsift report merged -o /mnt/share/night-0417.html"
+    )]
+    Report(cmd::report::ReportArgs),
     /// Print the default configuration as commented TOML (or check a configuration file).
     #[command(
         after_help = "Examples:\n  mzsift config > lab.toml\n  mzsift config --check lab.toml"
@@ -108,6 +119,7 @@ fn main() -> ExitCode {
         Command::Run(a) => cmd::run::run(a),
         Command::Check(a) => cmd::check::run(a, &mut out),
         Command::Merge(a) => cmd::merge::run(a),
+        Command::Report(a) => cmd::report::run(a),
         Command::Config(a) => cmd::config::run(a, &mut out),
         Command::List(a) => cmd::list::run(a, &mut out),
         Command::Info(a) => cmd::info::run(a, &mut out),

@@ -40,6 +40,7 @@ pub mod error;
 pub mod feature;
 pub mod flag;
 pub mod hash;
+pub mod html;
 pub mod mzml;
 pub mod pipeline;
 pub mod qc;

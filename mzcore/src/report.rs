@@ -12,6 +12,9 @@ use serde::Serialize;
 
 use crate::error::{Error, ErrorKind, Result};
 
+pub mod settings;
+pub use settings::ReportSettings;
+
 /// Escapes tab, newline, carriage return and backslash in a text cell.
 ///
 /// # Examples

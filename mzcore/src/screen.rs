@@ -95,6 +95,8 @@ pub struct ScreenConfig {
     pub flag: FlagSettings,
     /// Grouping of features into compounds, and the evidence for halogen calls.
     pub compound: CompoundSettings,
+    /// What the run writes besides the tables (`[report]`).
+    pub report: crate::report::ReportSettings,
 }
 
 impl ScreenConfig {

@@ -11,4 +11,5 @@ mod list;
 mod merge;
 mod nothing_lost;
 mod peaks;
+mod report;
 mod run;

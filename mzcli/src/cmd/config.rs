@@ -104,6 +104,10 @@ const DOCS: &[(&str, &str)] = &[
     ),
     ("compound.background_peak_ratio", "... unless its apex stands this many times its median"),
     ("compound.min_halogen_probability", "halogen call: least calibrated probability"),
+    (
+        "report.html",
+        "write OUTDIR/report.html at the end of a run (mzsift report renders it again)",
+    ),
 ];
 
 /// The TOML text with a `# ...` comment line above every documented key.

@@ -264,6 +264,8 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
         merged_from: Vec::new(),
     };
     crate::batch::write_run_record(out, &record)?;
-    let all_ok = outcomes.iter().all(|o| o.status == FileStatus::Ok);
+    let page_ok = !config.report.html
+        || crate::cmd::report::write_page(out, &out.join(crate::cmd::report::PAGE), args.quiet);
+    let all_ok = page_ok && outcomes.iter().all(|o| o.status == FileStatus::Ok);
     Ok(if all_ok { output::OK } else { output::SOME_FAILED })
 }
