@@ -19,10 +19,13 @@ pub struct Compound {
     /// Compound number in the file (1-based, by apex retention time, then mass).
     pub compound: usize,
     /// Retention time of the molecular ion's apex scan, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_apex_min: f64,
     /// First retention time of any member, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_start_min: f64,
     /// Last retention time of any member, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_end_min: f64,
     /// Scan polarity of the members: `+`, `-`, or empty when the file does not say.
     pub polarity: String,
@@ -31,6 +34,7 @@ pub struct Compound {
     /// Resolution class of the molecular ion's scans: `unit`, `high` or `unknown`.
     pub resolution: String,
     /// Neutral monoisotopic mass of the molecule, u; empty when the ion type is unknown.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub neutral_mass: Option<f64>,
     /// Neutral nominal mass (mass defect of the assigned Cl/Br corrected before rounding).
     pub nominal_mass: Option<i64>,
@@ -43,16 +47,20 @@ pub struct Compound {
     /// True when the neutral carries Cl or Br with enough evidence.
     pub halogen: bool,
     /// Calibrated probability that the neutral carries at least one Cl or Br.
+    #[serde(serialize_with = "crate::report::digits::probability")]
     pub halogen_probability: f64,
     /// m/z of the molecular ion's monoisotopic peak.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub molecular_ion_mz: f64,
     /// Ion type of the molecular ion (`M+.`, `[M+H]+`, `[M-H]-`, ...).
     pub ion_type: String,
     /// Charge number of the molecular ion (signed).
     pub charge: i32,
     /// Apex intensity of the molecular ion's monoisotopic peak.
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub apex_intensity: f64,
     /// Trapezoid area of the molecular ion's monoisotopic trace, intensity x minutes.
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub area: f64,
     /// The members: feature ids with their role, e.g. `4:[M+H]+;9:[M+Na]+;11:-HCl`.
     pub members: String,

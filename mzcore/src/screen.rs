@@ -92,6 +92,17 @@ pub struct ScreenConfig {
     pub centroid: CentroidParams,
     /// Halogen and nitrogen-rule flagging, and feature grouping.
     pub flag: FlagSettings,
+    /// How the reports are written.
+    pub report: ReportSettings,
+}
+
+/// How the reports are written (`[report]` of the configuration).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
+#[serde(deny_unknown_fields, default)]
+pub struct ReportSettings {
+    /// Digits of numbers: `measured` (per kind of quantity, see the README) or `full`
+    /// (shortest round-trip digits).
+    pub precision: crate::report::digits::Precision,
 }
 
 impl ScreenConfig {
@@ -189,16 +200,20 @@ pub struct SpectrumRow {
     /// How the data was treated: `profile` or `centroid`.
     pub representation: &'static str,
     /// Scan start time, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_min: Option<f64>,
     /// Decoded points.
     pub points: Option<usize>,
     /// Picked peaks.
     pub peaks: Option<usize>,
     /// Sum of decoded intensities.
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub intensity_sum: Option<f64>,
     /// m/z of the most intense point.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub base_peak_mz: Option<f64>,
     /// Intensity of the most intense point.
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub base_peak_intensity: Option<f64>,
     /// `unit`, `high` or `unknown`.
     pub resolution: &'static str,
@@ -209,12 +224,14 @@ pub struct SpectrumRow {
     /// A halogen signature was found.
     pub has_halogen: Option<bool>,
     /// m/z of the best halogen assignment.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub best_mz: Option<f64>,
     /// Chlorine atoms of the best assignment.
     pub best_n_cl: Option<u8>,
     /// Bromine atoms of the best assignment.
     pub best_n_br: Option<u8>,
     /// Posterior probability of the best assignment.
+    #[serde(serialize_with = "crate::report::digits::probability")]
     pub best_score: Option<f64>,
     /// Nitrogen rule of the molecular-ion candidate: `true`, `false` or `undecided`.
     pub odd_nominal: Option<OddNominal>,
@@ -405,6 +422,22 @@ pub struct FileSummary {
     /// off or the end of the document was not reached).
     #[serde(default)]
     pub checksum: ChecksumStatus,
+    /// What was odd about the file but cost no data (escaped text; e.g. index offsets a few
+    /// bytes off): the status stays `ok` for these.
+    #[serde(default)]
+    pub warnings: Vec<String>,
+}
+
+impl FileSummary {
+    /// The `warning` cell of `batch.tsv`: empty, `1 warning: <it>`, or
+    /// `<n> warnings; first: <it>`.
+    pub fn warning_cell(&self) -> String {
+        match self.warnings.as_slice() {
+            [] => String::new(),
+            [one] => format!("1 warning: {one}"),
+            [first, ..] => format!("{} warnings; first: {first}", self.warnings.len()),
+        }
+    }
 }
 
 /// Everything the reports of one file hold.
@@ -458,8 +491,10 @@ pub struct TracePoint {
     /// Index of the spectrum in the file.
     pub index: usize,
     /// Its scan start time, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_min: Option<f64>,
     /// Most intense centroid within the window (0 when none).
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub intensity: f64,
 }
 
@@ -617,6 +652,7 @@ pub fn screen_reader_traced<R: BufRead>(
         sha256: String::new(),
         bytes: 0,
         checksum: ChecksumStatus::NotChecked,
+        warnings: Vec::new(),
     };
     let mut traces: Vec<Vec<TracePoint>> = vec![Vec::new(); targets.len()];
     let mut spectra = Vec::new();
@@ -730,6 +766,8 @@ pub fn screen_reader_traced<R: BufRead>(
             .collect();
     }
     summary.checksum = reader.checksum_status().clone();
+    summary.warnings =
+        reader.warnings().iter().map(|w| crate::report::escape_text(&w.to_string())).collect();
     list_missing(&mut spectra, &mut summary, unplaced, &index, declared.filter(|_| stopped));
     // The rest of the input is read for its SHA-256. An input that fails now (or failed
     // while the reader read it) keeps its report: the spectra read are kept, no hash.

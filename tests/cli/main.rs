@@ -11,4 +11,6 @@ mod list;
 mod merge;
 mod nothing_lost;
 mod peaks;
+mod precision;
+mod real_world;
 mod run;

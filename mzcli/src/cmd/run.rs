@@ -10,7 +10,7 @@ use std::path::{Path, PathBuf};
 use std::time::{Instant, SystemTime};
 
 use anyhow::Context;
-use mzcore::report::{self, escape_text};
+use mzcore::report::{self, digits, escape_text};
 use mzcore::screen::{
     self, FEATURE_COLUMNS, FileReport, FileStatus, FileSummary, ION_COLUMNS, SPECTRUM_COLUMNS,
     ScreenConfig,
@@ -207,7 +207,10 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
                         config: config_text.clone(),
                         summary: report.summary.clone(),
                     };
-                    let (status, error) = match write_reports(&dir, &report, &completion) {
+                    let written = digits::with_precision(config.report.precision, || {
+                        write_reports(&dir, &report, &completion)
+                    });
+                    let (status, error) = match written {
                         Ok(()) => (report.summary.status, report.summary.error.clone()),
                         Err(e) => {
                             (FileStatus::Failed, escape_text(&format!("writing reports: {e}")))
@@ -215,6 +218,11 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
                     };
                     if status != FileStatus::Ok {
                         output::report(&input.path, &error);
+                    }
+                    if !args.quiet {
+                        for w in &report.summary.warnings {
+                            output::report(&input.path, w);
+                        }
                     }
                     Outcome {
                         path,
@@ -246,7 +254,7 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
         progress.file_done(i + 1, &outcome);
         outcomes.push(outcome);
     }
-    crate::batch::write_batch(out, &outcomes)?;
+    digits::with_precision(config.report.precision, || crate::batch::write_batch(out, &outcomes))?;
     let record = RunRecord {
         tool: "mzsift".into(),
         version: env!("CARGO_PKG_VERSION").into(),
@@ -260,6 +268,11 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
         merged_from: Vec::new(),
     };
     crate::batch::write_run_record(out, &record)?;
+    if !args.quiet {
+        for line in crate::summary::lines(&outcomes, out) {
+            eprintln!("{line}");
+        }
+    }
     let all_ok = outcomes.iter().all(|o| o.status == FileStatus::Ok);
     Ok(if all_ok { output::OK } else { output::SOME_FAILED })
 }
