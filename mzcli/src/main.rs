@@ -6,6 +6,7 @@
 mod batch;
 mod cmd;
 mod output;
+mod progress;
 mod summary;
 
 use std::process::ExitCode;

@@ -503,12 +503,24 @@ pub struct Sha256Reader<R> {
     inner: R,
     hasher: BackgroundDigest,
     bytes: u64,
+    progress: Option<std::sync::Arc<std::sync::atomic::AtomicU64>>,
 }
 
 impl<R: BufRead> Sha256Reader<R> {
     /// Wraps `inner`.
     pub fn new(inner: R) -> Self {
-        Sha256Reader { inner, hasher: BackgroundDigest::new::<sha2::Sha256>(), bytes: 0 }
+        Sha256Reader {
+            inner,
+            hasher: BackgroundDigest::new::<sha2::Sha256>(),
+            bytes: 0,
+            progress: None,
+        }
+    }
+
+    /// Wraps `inner`, also adding every byte read to `counter` (for a progress display on
+    /// another thread while the file is screened).
+    pub fn with_progress(inner: R, counter: std::sync::Arc<std::sync::atomic::AtomicU64>) -> Self {
+        Sha256Reader { progress: Some(counter), ..Sha256Reader::new(inner) }
     }
 
     /// Bytes read through so far.
@@ -543,6 +555,9 @@ impl<R: BufRead> BufRead for Sha256Reader<R> {
             self.hasher.update(&buf[..amt.min(buf.len())]);
         }
         self.bytes += amt as u64;
+        if let Some(p) = &self.progress {
+            p.fetch_add(amt as u64, std::sync::atomic::Ordering::Relaxed);
+        }
         self.inner.consume(amt);
     }
 }
@@ -557,6 +572,19 @@ pub fn screen_file(
     pool: &rayon::ThreadPool,
 ) -> Result<FileReport> {
     screen_file_traced(path, config, pool, &[])
+}
+
+/// [`screen_file`] that adds every input byte read to `counter` as it goes (bytes as stored,
+/// compressed or not), so that another thread can show progress inside a large file.
+pub fn screen_file_counted(
+    path: &Path,
+    config: &ScreenConfig,
+    pool: &rayon::ThreadPool,
+    counter: std::sync::Arc<std::sync::atomic::AtomicU64>,
+) -> Result<FileReport> {
+    let file = File::open(path)?;
+    let input = Sha256Reader::with_progress(BufReader::with_capacity(256 * 1024, file), counter);
+    screen_reader_traced(input, config, pool, &[])
 }
 
 /// [`screen_file`] that also records one extracted-ion trace per target in

@@ -12,5 +12,6 @@ mod merge;
 mod nothing_lost;
 mod peaks;
 mod precision;
+mod progress;
 mod real_world;
 mod run;
