@@ -75,6 +75,10 @@ const DOCS: &[(&str, &str)] = &[
     ),
     ("flag.feature_min_scans", "least consecutive MS1 scans for a feature"),
     ("flag.feature_max_gap", "MS1 scans that may be missing inside a feature"),
+    (
+        "report.precision",
+        "digits of report numbers: \"measured\" (per kind, see the README) or \"full\" (round trip)",
+    ),
 ];
 
 /// The TOML text with a `# ...` comment line above every documented key.
