@@ -7,14 +7,14 @@ use mzcore::screen::{FileStatus, FileSummary};
 
 use crate::batch::Outcome;
 
-/// What the summary counts per file: the halogenated and the odd-nominal findings, and the
-/// word for them. The one place to switch from features to compounds.
+/// What the summary counts per file: the halogenated and the odd-nominal findings (compounds),
+/// and the word for them. The one place that decides what is counted.
 fn findings(s: &FileSummary) -> (usize, usize) {
-    (s.halogen_features, s.odd_nominal_features)
+    (s.halogen_compounds, s.odd_nominal_compounds)
 }
 
 /// The word for what [`findings`] counts.
-const FINDINGS: &str = "features";
+const FINDINGS: &str = "compounds";
 
 /// The summary lines (without trailing newlines).
 pub fn lines(outcomes: &[Outcome], out: &Path) -> Vec<String> {
@@ -62,7 +62,8 @@ mod tests {
         let summary: FileSummary = serde_json::from_value(serde_json::json!({
             "status": status, "error": "", "spectra": 1, "ms1": 1, "ms2": 0,
             "rt_start_min": null, "rt_end_min": null, "flagged_spectra": 0,
-            "halogen_features": halogen, "odd_nominal_features": odd, "unreadable": [],
+            "halogen_features": 0, "odd_nominal_features": 0, "unreadable": [],
+            "halogen_compounds": halogen, "odd_nominal_compounds": odd,
             "missing_from_index": [], "index_entries": null, "sha256": "", "bytes": 0,
             "warnings": vec!["w"; warnings],
         }))
@@ -89,7 +90,7 @@ mod tests {
         assert_eq!(l[0], "mzsift: 3 files: 2 ok, 1 partial, 0 failed, 0 skipped");
         assert_eq!(
             l[1],
-            "mzsift: halogenated features: 5 in 2 files; odd nominal mass: 1 in 1 file"
+            "mzsift: halogenated compounds: 5 in 2 files; odd nominal mass: 1 in 1 file"
         );
         assert_eq!(l[2], "mzsift: 2 warnings in 1 file");
         assert!(l[3].contains("out/batch.tsv") && l[3].contains("out/run.json"), "{}", l[3]);
