@@ -131,10 +131,13 @@ struct BatchRow<'a> {
     file: String,
     status: &'a str,
     error: String,
+    warning: String,
     spectra: Option<usize>,
     ms1: Option<usize>,
     ms2: Option<usize>,
+    #[serde(serialize_with = "mzcore::report::digits::minutes")]
     rt_start_min: Option<f64>,
+    #[serde(serialize_with = "mzcore::report::digits::minutes")]
     rt_end_min: Option<f64>,
     flagged_spectra: Option<usize>,
     halogen_features: Option<usize>,
@@ -142,6 +145,7 @@ struct BatchRow<'a> {
     halogen_compounds: Option<usize>,
     odd_nominal_compounds: Option<usize>,
     unreadable_spectra: Option<usize>,
+    #[serde(serialize_with = "mzcore::report::digits::seconds")]
     seconds: f64,
 }
 
@@ -149,6 +153,7 @@ const BATCH_COLUMNS: &[&str] = &[
     "file",
     "status",
     "error",
+    "warning",
     "spectra",
     "ms1",
     "ms2",
@@ -281,6 +286,7 @@ pub fn write_batch(out: &Path, outcomes: &[Outcome]) -> anyhow::Result<()> {
                 file: report::escape_text(&o.path),
                 status: o.status.name(),
                 error: o.error.clone(),
+                warning: s.map(FileSummary::warning_cell).unwrap_or_default(),
                 spectra: s.map(|s| s.spectra),
                 ms1: s.map(|s| s.ms1),
                 ms2: s.map(|s| s.ms2),

@@ -6,6 +6,8 @@
 mod batch;
 mod cmd;
 mod output;
+mod progress;
+mod summary;
 
 use std::process::ExitCode;
 

@@ -53,10 +53,13 @@ pub struct Compound {
     /// Compound number in the file (1-based, by apex retention time, then mass).
     pub compound: usize,
     /// Retention time of the molecular ion's apex scan, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_apex_min: f64,
     /// First retention time of any member, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_start_min: f64,
     /// Last retention time of any member, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_end_min: f64,
     /// Scan polarity of the members: `+`, `-`, or empty when the file does not say.
     pub polarity: String,
@@ -65,6 +68,7 @@ pub struct Compound {
     /// Resolution class of the molecular ion's scans: `unit`, `high` or `unknown`.
     pub resolution: String,
     /// Neutral monoisotopic mass of the molecule, u; empty when the ion type is unknown.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub neutral_mass: Option<f64>,
     /// Neutral nominal mass (mass defect of the assigned Cl/Br corrected before rounding).
     pub nominal_mass: Option<i64>,
@@ -77,16 +81,20 @@ pub struct Compound {
     /// True when the neutral carries Cl or Br with enough evidence.
     pub halogen: bool,
     /// Calibrated probability that the neutral carries at least one Cl or Br.
+    #[serde(serialize_with = "crate::report::digits::probability")]
     pub halogen_probability: f64,
     /// m/z of the molecular ion's monoisotopic peak.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub molecular_ion_mz: f64,
     /// Ion type of the molecular ion (`M+.`, `[M+H]+`, `[M-H]-`, ...).
     pub ion_type: String,
     /// Charge number of the molecular ion (signed).
     pub charge: i32,
     /// Apex intensity of the molecular ion's monoisotopic peak.
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub apex_intensity: f64,
     /// Trapezoid area of the molecular ion's monoisotopic trace, intensity x minutes.
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub area: f64,
     /// The members: feature ids with their role, e.g. `4:[M+H]+;9:[M+Na]+;11:-HCl`.
     pub members: String,
@@ -287,10 +295,13 @@ pub struct TraceRow {
     /// `M`, `M+2` or `M+4`.
     pub shell: String,
     /// Centre m/z of the shell (monoisotopic m/z plus the shell's nominal step over z).
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub mz: f64,
     /// Retention time, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_min: f64,
     /// Height (shell sum for M+2, M+4; 0 when absent).
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub intensity: f64,
 }
 
@@ -305,8 +316,10 @@ pub struct ClusterRow {
     /// Nominal shell: 0 is M, 2 is M+2.
     pub shell: usize,
     /// Observed height relative to the most intense observed shell.
+    #[serde(serialize_with = "crate::report::digits::ratio")]
     pub observed: f64,
     /// Height the assigned Cl/Br hypothesis fits, same scale.
+    #[serde(serialize_with = "crate::report::digits::ratio")]
     pub expected: f64,
 }
 

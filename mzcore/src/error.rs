@@ -173,6 +173,11 @@ pub enum ErrorKind {
         /// Why it failed.
         reason: String,
     },
+    /// The input is another format, or a draft or older version of mzML, that is not read:
+    /// the message says which and what to do (e.g. `mzML 0.99.1 is a pre-release draft;
+    /// convert to mzML 1.1`).
+    #[error("{0}")]
+    UnsupportedFormat(String),
     /// A configuration or scenario file is invalid.
     #[error("invalid configuration: {0}")]
     Config(String),
@@ -263,6 +268,33 @@ impl From<ErrorKind> for Error {
 impl From<std::io::Error> for Error {
     fn from(e: std::io::Error) -> Self {
         Error::new(ErrorKind::Io(e))
+    }
+}
+
+/// Something odd about an input that costs no data: it is reported, the input is still read
+/// in full (e.g. index offsets a few bytes off, found by a bounded search).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Warning {
+    /// Where it was noticed.
+    pub position: Position,
+    /// What was noticed and what the reader did about it.
+    pub message: String,
+}
+
+impl Warning {
+    /// A warning at `position`.
+    pub fn at(message: impl Into<String>, position: Position) -> Self {
+        Warning { position, message: message.into() }
+    }
+}
+
+impl fmt::Display for Warning {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        if self.position.is_empty() {
+            write!(f, "warning: {}", self.message)
+        } else {
+            write!(f, "{}: warning: {}", self.position, self.message)
+        }
     }
 }
 

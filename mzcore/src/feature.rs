@@ -61,22 +61,28 @@ pub struct Feature {
     /// Feature number in the file (1-based, in order of the first scan, then m/z).
     pub feature: usize,
     /// Intensity-weighted m/z of the monoisotopic peak.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub mz: f64,
     /// Charge number.
     pub charge: i32,
     /// Retention time of the most intense scan, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_apex_min: f64,
     /// First retention time, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_start_min: f64,
     /// Last retention time, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_end_min: f64,
     /// Number of scans with an ion.
     pub scans: usize,
     /// Spectrum index of the apex scan.
     pub apex_scan: usize,
     /// Highest monoisotopic intensity.
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub apex_intensity: f64,
     /// Trapezoid area of monoisotopic intensity over RT (intensity x minutes).
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub area: f64,
     /// True when the consensus assignment carries Cl or Br and its scans were flagged.
     pub halogen: bool,
@@ -87,8 +93,10 @@ pub struct Feature {
     /// Consensus assignment label.
     pub assignment: String,
     /// Fraction of the feature's scans that agree with the consensus.
+    #[serde(serialize_with = "crate::report::digits::ratio")]
     pub support: f64,
     /// Mean halogen probability of the agreeing scans.
+    #[serde(serialize_with = "crate::report::digits::probability")]
     pub halogen_score: f64,
     /// Consensus neutral nominal mass.
     pub nominal_mass: Option<i64>,

@@ -230,14 +230,18 @@ pub struct FlaggedIon {
     /// Native id of the spectrum.
     pub spectrum_id: String,
     /// Retention time in minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_min: Option<f64>,
     /// m/z of the monoisotopic peak.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub mz: f64,
     /// Charge number (sign from the polarity or ion type).
     pub charge: i32,
     /// Height of the monoisotopic peak.
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub intensity: f64,
     /// S/N of the monoisotopic peak.
+    #[serde(serialize_with = "crate::report::digits::ratio")]
     pub snr: f64,
     /// True when the cluster is flagged as carrying Cl and/or Br.
     pub halogen: bool,
@@ -250,26 +254,35 @@ pub struct FlaggedIon {
     /// Bromine atoms of the best hypothesis.
     pub n_br: u8,
     /// Posterior probability of the best hypothesis.
+    #[serde(serialize_with = "crate::report::digits::probability")]
     pub score: f64,
     /// Posterior probability that the cluster carries at least one Cl or Br.
+    #[serde(serialize_with = "crate::report::digits::probability")]
     pub halogen_probability: f64,
     /// Second-best hypothesis.
     pub second: String,
     /// Posterior probability of the second-best hypothesis.
+    #[serde(serialize_with = "crate::report::digits::probability")]
     pub second_score: f64,
     /// Chi-square per degree of freedom of the best hypothesis.
+    #[serde(serialize_with = "crate::report::digits::ratio")]
     pub misfit: f64,
     /// Observed M+2/M intensity ratio (shell sums).
+    #[serde(serialize_with = "crate::report::digits::ratio")]
     pub m2_ratio: f64,
     /// Expected M+2/M under the best hypothesis.
+    #[serde(serialize_with = "crate::report::digits::ratio")]
     pub m2_expected: f64,
     /// Observed M+4/M.
+    #[serde(serialize_with = "crate::report::digits::ratio")]
     pub m4_ratio: f64,
     /// Expected M+4/M under the best hypothesis.
+    #[serde(serialize_with = "crate::report::digits::ratio")]
     pub m4_expected: f64,
     /// What the M+2 spacing says (high resolution only).
     pub spacing: SpacingVerdict,
     /// Observed M+2 mass difference (spacing times charge), u.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub m2_delta: Option<f64>,
     /// Neutral nominal mass of the molecule, if it could be worked out.
     pub nominal_mass: Option<i64>,
@@ -278,6 +291,7 @@ pub struct FlaggedIon {
     /// Ion type used for the nitrogen rule (`M+.`, `[M+H]+`, ...), empty when unknown.
     pub ion_type: String,
     /// Tolerance used for the cluster, in u at this m/z.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub tolerance_da: f64,
     /// Human-readable reasons for the halogen and parity calls.
     pub reason: String,

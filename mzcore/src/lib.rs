@@ -49,4 +49,4 @@ pub mod screen;
 pub mod spectrum;
 pub mod synth;
 
-pub use error::{Error, ErrorKind, Position, Result};
+pub use error::{Error, ErrorKind, Position, Result, Warning};

@@ -14,5 +14,5 @@ mod reader;
 mod writer;
 
 pub use indexed::IndexedReader;
-pub use reader::{ChecksumStatus, INTERPRETED_TERMS, Reader, ReaderOptions};
+pub use reader::{ChecksumStatus, INDEX_SEARCH_BYTES, INTERPRETED_TERMS, Reader, ReaderOptions};
 pub use writer::{EncodedPeaks, Writer, WriterOptions};

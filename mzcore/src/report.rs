@@ -12,6 +12,7 @@ use serde::Serialize;
 
 use crate::error::{Error, ErrorKind, Result};
 
+pub mod digits;
 pub mod settings;
 pub use settings::ReportSettings;
 
@@ -124,7 +125,7 @@ pub fn write_atomic(path: &Path, fill: impl FnOnce(&mut dyn Write) -> Result<()>
 /// Writes `value` as pretty JSON to `path` atomically.
 pub fn write_json_atomic<T: Serialize>(path: &Path, value: &T) -> Result<()> {
     write_atomic(path, |w| {
-        serde_json::to_writer_pretty(&mut *w, value)
+        digits::as_numbers(|| serde_json::to_writer_pretty(&mut *w, value))
             .map_err(|e| Error::new(ErrorKind::Config(format!("JSON writer: {e}"))))?;
         writeln!(w)?;
         Ok(())

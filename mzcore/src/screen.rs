@@ -195,16 +195,20 @@ pub struct SpectrumRow {
     /// How the data was treated: `profile` or `centroid`.
     pub representation: &'static str,
     /// Scan start time, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_min: Option<f64>,
     /// Decoded points.
     pub points: Option<usize>,
     /// Picked peaks.
     pub peaks: Option<usize>,
     /// Sum of decoded intensities.
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub intensity_sum: Option<f64>,
     /// m/z of the most intense point.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub base_peak_mz: Option<f64>,
     /// Intensity of the most intense point.
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub base_peak_intensity: Option<f64>,
     /// `unit`, `high` or `unknown`.
     pub resolution: &'static str,
@@ -215,12 +219,14 @@ pub struct SpectrumRow {
     /// A halogen signature was found.
     pub has_halogen: Option<bool>,
     /// m/z of the best halogen assignment.
+    #[serde(serialize_with = "crate::report::digits::mz")]
     pub best_mz: Option<f64>,
     /// Chlorine atoms of the best assignment.
     pub best_n_cl: Option<u8>,
     /// Bromine atoms of the best assignment.
     pub best_n_br: Option<u8>,
     /// Posterior probability of the best assignment.
+    #[serde(serialize_with = "crate::report::digits::probability")]
     pub best_score: Option<f64>,
     /// Nitrogen rule of the molecular-ion candidate: `true`, `false` or `undecided`.
     pub odd_nominal: Option<OddNominal>,
@@ -418,6 +424,22 @@ pub struct FileSummary {
     /// off or the end of the document was not reached).
     #[serde(default)]
     pub checksum: ChecksumStatus,
+    /// What was odd about the file but cost no data (escaped text; e.g. index offsets a few
+    /// bytes off): the status stays `ok` for these.
+    #[serde(default)]
+    pub warnings: Vec<String>,
+}
+
+impl FileSummary {
+    /// The `warning` cell of `batch.tsv`: empty, `1 warning: <it>`, or
+    /// `<n> warnings; first: <it>`.
+    pub fn warning_cell(&self) -> String {
+        match self.warnings.as_slice() {
+            [] => String::new(),
+            [one] => format!("1 warning: {one}"),
+            [first, ..] => format!("{} warnings; first: {first}", self.warnings.len()),
+        }
+    }
 }
 
 /// Everything the reports of one file hold.
@@ -477,8 +499,10 @@ pub struct TracePoint {
     /// Index of the spectrum in the file.
     pub index: usize,
     /// Its scan start time, minutes.
+    #[serde(serialize_with = "crate::report::digits::minutes")]
     pub rt_min: Option<f64>,
     /// Most intense centroid within the window (0 when none).
+    #[serde(serialize_with = "crate::report::digits::intensity")]
     pub intensity: f64,
 }
 
@@ -487,12 +511,24 @@ pub struct Sha256Reader<R> {
     inner: R,
     hasher: BackgroundDigest,
     bytes: u64,
+    progress: Option<std::sync::Arc<std::sync::atomic::AtomicU64>>,
 }
 
 impl<R: BufRead> Sha256Reader<R> {
     /// Wraps `inner`.
     pub fn new(inner: R) -> Self {
-        Sha256Reader { inner, hasher: BackgroundDigest::new::<sha2::Sha256>(), bytes: 0 }
+        Sha256Reader {
+            inner,
+            hasher: BackgroundDigest::new::<sha2::Sha256>(),
+            bytes: 0,
+            progress: None,
+        }
+    }
+
+    /// Wraps `inner`, also adding every byte read to `counter` (for a progress display on
+    /// another thread while the file is screened).
+    pub fn with_progress(inner: R, counter: std::sync::Arc<std::sync::atomic::AtomicU64>) -> Self {
+        Sha256Reader { progress: Some(counter), ..Sha256Reader::new(inner) }
     }
 
     /// Bytes read through so far.
@@ -527,6 +563,9 @@ impl<R: BufRead> BufRead for Sha256Reader<R> {
             self.hasher.update(&buf[..amt.min(buf.len())]);
         }
         self.bytes += amt as u64;
+        if let Some(p) = &self.progress {
+            p.fetch_add(amt as u64, std::sync::atomic::Ordering::Relaxed);
+        }
         self.inner.consume(amt);
     }
 }
@@ -541,6 +580,19 @@ pub fn screen_file(
     pool: &rayon::ThreadPool,
 ) -> Result<FileReport> {
     screen_file_traced(path, config, pool, &[])
+}
+
+/// [`screen_file`] that adds every input byte read to `counter` as it goes (bytes as stored,
+/// compressed or not), so that another thread can show progress inside a large file.
+pub fn screen_file_counted(
+    path: &Path,
+    config: &ScreenConfig,
+    pool: &rayon::ThreadPool,
+    counter: std::sync::Arc<std::sync::atomic::AtomicU64>,
+) -> Result<FileReport> {
+    let file = File::open(path)?;
+    let input = Sha256Reader::with_progress(BufReader::with_capacity(256 * 1024, file), counter);
+    screen_reader_traced(input, config, pool, &[])
 }
 
 /// [`screen_file`] that also records one extracted-ion trace per target in
@@ -638,6 +690,7 @@ pub fn screen_reader_traced<R: BufRead>(
         sha256: String::new(),
         bytes: 0,
         checksum: ChecksumStatus::NotChecked,
+        warnings: Vec::new(),
     };
     let mut traces: Vec<Vec<TracePoint>> = vec![Vec::new(); targets.len()];
     let mut spectra = Vec::new();
@@ -762,6 +815,8 @@ pub fn screen_reader_traced<R: BufRead>(
             .collect();
     }
     summary.checksum = reader.checksum_status().clone();
+    summary.warnings =
+        reader.warnings().iter().map(|w| crate::report::escape_text(&w.to_string())).collect();
     list_missing(&mut spectra, &mut summary, unplaced, &index, declared.filter(|_| stopped));
     // The rest of the input is read for its SHA-256. An input that fails now (or failed
     // while the reader read it) keeps its report: the spectra read are kept, no hash.

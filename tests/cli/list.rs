@@ -30,10 +30,11 @@ fn list_has_the_documented_columns_and_one_row_per_spectrum() {
     assert_eq!(rows.len(), 4);
     // Second spectrum: the MS2 of the fixture generator (mzcore/examples/make_fixtures.rs).
     let ms2 = &rows[1];
-    assert_eq!(&ms2[..7], ["1", "scan=2", "2", "+", "centroid", "0.51", "4"]);
-    assert_eq!(ms2[7], "1320.0"); // 120 + 850 + 40 + 310
-    assert_eq!(ms2[10], "91.0");
-    assert_eq!(ms2[12], "151.9904");
+    assert_eq!(&ms2[..7], ["1", "scan=2", "2", "+", "centroid", "0.5100", "4"]);
+    // Digits per the README's "Numbers": intensities 6 significant, m/z 5 decimals.
+    assert_eq!(ms2[7], "1320.00"); // 120 + 850 + 40 + 310
+    assert_eq!(ms2[10], "91.00000");
+    assert_eq!(ms2[12], "151.99040");
     assert_eq!(ms2[13], "1");
     // Empty spectrum: empty cells for values that do not exist.
     let empty = &rows[2];

@@ -11,5 +11,8 @@ mod list;
 mod merge;
 mod nothing_lost;
 mod peaks;
+mod precision;
+mod progress;
+mod real_world;
 mod report;
 mod run;

@@ -16,8 +16,8 @@ fn batch_without_seconds(out: &Path) -> String {
         .lines()
         .map(|l| {
             let cells: Vec<&str> = l.split('\t').collect();
-            assert_eq!(cells.len(), 13, "{l}");
-            cells[..12].join("\t")
+            assert_eq!(cells.len(), 14, "{l}");
+            cells[..13].join("\t")
         })
         .collect::<Vec<_>>()
         .join("\n")

@@ -25,7 +25,7 @@ fn raw_points_and_streaming_lookup_in_a_plain_file() {
     let (header, rows) = tsv(&stdout(&o));
     assert_eq!(header, ["mz", "intensity"]);
     assert_eq!(rows.len(), 4);
-    assert_eq!(rows[1], ["91.0", "850.0"]);
+    assert_eq!(rows[1], ["91.00000", "850.000"]);
 }
 
 #[test]

@@ -108,6 +108,10 @@ const DOCS: &[(&str, &str)] = &[
         "report.html",
         "write OUTDIR/report.html at the end of a run (mzsift report renders it again)",
     ),
+    (
+        "report.precision",
+        "digits of report numbers: \"measured\" (per kind, see the README) or \"full\" (round trip)",
+    ),
 ];
 
 /// The TOML text with a `# ...` comment line above every documented key.

@@ -43,7 +43,9 @@ struct Summary {
     spectra: usize,
     unreadable_spectra: usize,
     spectra_per_ms_level: BTreeMap<u8, usize>,
+    #[serde(serialize_with = "mzcore::report::digits::minutes")]
     rt_start_min: Option<f64>,
+    #[serde(serialize_with = "mzcore::report::digits::minutes")]
     rt_end_min: Option<f64>,
     polarity: Vec<&'static str>,
     representation: Vec<&'static str>,
@@ -55,6 +57,7 @@ struct Summary {
     tic_chromatogram_points: Option<usize>,
     checksum: &'static str,
     errors: Vec<String>,
+    warnings: Vec<String>,
 }
 
 fn push_unique(v: &mut Vec<&'static str>, s: &'static str) {
@@ -94,6 +97,10 @@ pub fn run(args: &InfoArgs, out: &mut dyn Write) -> anyhow::Result<u8> {
             }
         }
     }
+    for w in reader.warnings() {
+        output::report(&args.file, w);
+        sum.warnings.push(w.to_string());
+    }
     sum.encodings = reader.encodings_seen().iter().map(|e| e.label()).collect();
     sum.gzip = reader.is_gzip();
     sum.indexed = reader.is_indexed();
@@ -106,11 +113,13 @@ pub fn run(args: &InfoArgs, out: &mut dyn Write) -> anyhow::Result<u8> {
         ChecksumStatus::Mismatch => "mismatch",
     };
     write_summary(&sum, args.format, out)?;
+    // Warnings (an index a few bytes off, or not used) cost no data: exit code 0.
     Ok(if sum.errors.is_empty() { output::OK } else { output::SOME_FAILED })
 }
 
 fn fmt_opt(v: Option<f64>) -> String {
-    v.map(|x| format!("{x:.4}")).unwrap_or_default()
+    v.map(|x| mzcore::report::digits::text(mzcore::report::digits::Kind::Minutes, x))
+        .unwrap_or_default()
 }
 
 fn write_summary(s: &Summary, format: InfoFormat, out: &mut dyn Write) -> anyhow::Result<()> {
@@ -140,10 +149,11 @@ fn write_summary(s: &Summary, format: InfoFormat, out: &mut dyn Write) -> anyhow
         ),
         ("checksum", s.checksum.to_string()),
         ("errors", s.errors.len().to_string()),
+        ("warnings", s.warnings.len().to_string()),
     ];
     match format {
         InfoFormat::Json => {
-            serde_json::to_writer_pretty(&mut *out, s)?;
+            mzcore::report::digits::as_numbers(|| serde_json::to_writer_pretty(&mut *out, s))?;
             writeln!(out)?;
         }
         InfoFormat::Tsv => {

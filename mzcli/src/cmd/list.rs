@@ -25,13 +25,20 @@ struct Row<'a> {
     ms_level: u8,
     polarity: &'static str,
     representation: &'static str,
+    #[serde(serialize_with = "mzcore::report::digits::minutes")]
     rt_min: Option<f64>,
     points: usize,
+    #[serde(serialize_with = "mzcore::report::digits::intensity")]
     intensity_sum: f64,
+    #[serde(serialize_with = "mzcore::report::digits::mz")]
     mz_min: Option<f64>,
+    #[serde(serialize_with = "mzcore::report::digits::mz")]
     mz_max: Option<f64>,
+    #[serde(serialize_with = "mzcore::report::digits::mz")]
     base_peak_mz: Option<f64>,
+    #[serde(serialize_with = "mzcore::report::digits::intensity")]
     base_peak_intensity: Option<f64>,
+    #[serde(serialize_with = "mzcore::report::digits::mz")]
     precursor_mz: Option<f64>,
     precursor_charge: Option<i32>,
 }

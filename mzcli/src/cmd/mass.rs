@@ -2,6 +2,7 @@
 
 use anyhow::Result;
 use mzcore::chem::{Formula, IonType};
+use mzcore::report::digits::{self, Kind};
 
 /// Arguments of `mzsift mass`.
 #[derive(Debug, Clone, clap::Args)]
@@ -35,15 +36,18 @@ pub fn run(args: &MassArgs, out: &mut dyn std::io::Write) -> Result<()> {
     let ion_nominal = ion.nominal_mass(&f)?;
     let rows: Vec<(&str, String)> = vec![
         ("formula", f.hill()),
-        ("monoisotopic_mass", format!("{:.6}", f.monoisotopic_mass())),
+        ("monoisotopic_mass", digits::text(Kind::Theoretical, f.monoisotopic_mass())),
         ("nominal_mass", rule.nominal_mass.to_string()),
-        ("average_mass", format!("{:.5}", f.average_mass())),
+        (
+            "average_mass", // Standard atomic weights carry at most 5 decimals.
+            digits::text(Kind::Mz, f.average_mass()),
+        ),
         ("nitrogen_count", rule.nitrogen.to_string()),
         ("nominal_mass_parity", rule.parity.to_string()),
         ("nitrogen_rule", verdict.to_string()),
         ("ion", ion.to_string()),
         ("ion_charge", ion.charge().to_string()),
-        ("ion_mz", format!("{:.6}", ion.mz(&f)?)),
+        ("ion_mz", digits::text(Kind::Theoretical, ion.mz(&f)?)),
         ("ion_nominal_mass", ion_nominal.to_string()),
         ("ion_nominal_parity", mzcore::chem::Parity::of(ion_nominal).to_string()),
     ];

@@ -199,8 +199,11 @@ fn write(args: &MergeArgs, runs: &[RunRecord], entries: Vec<Entry>) -> anyhow::R
         }
         outcomes.push(outcome);
     }
-    crate::batch::write_batch(out, &outcomes)?;
     let first = &runs[0];
+    let precision = first.config.report.precision;
+    mzcore::report::digits::with_precision(precision, || {
+        crate::batch::write_batch(out, &outcomes)
+    })?;
     let record = RunRecord {
         tool: "mzsift".into(),
         version: first.version.clone(),

@@ -3,6 +3,7 @@
 use anyhow::{Context, Result, bail};
 use mzcore::chem::isotopes::{self, Resolution};
 use mzcore::chem::{Formula, IonType};
+use mzcore::report::digits::{self, Kind};
 
 /// Arguments of `mzsift pattern`.
 #[derive(Debug, Clone, clap::Args)]
@@ -60,7 +61,8 @@ pub fn resolve_ion(ion: Option<&str>, charge: Option<i32>) -> Result<Option<IonT
     }
 }
 
-/// Writes the pattern as TSV to `out`.
+/// Writes the pattern as TSV to `out` (m/z and relative abundance, %, with 6 decimals; the
+/// abundance, a fraction, with 6 significant digits).
 pub fn run(args: &PatternArgs, out: &mut dyn std::io::Write) -> Result<()> {
     let formula = Formula::parse(&args.formula)?;
     let ion = resolve_ion(args.ion.as_deref(), args.charge)?;
@@ -76,9 +78,9 @@ pub fn run(args: &PatternArgs, out: &mut dyn std::io::Write) -> Result<()> {
     for p in peaks {
         w.write_record([
             p.label,
-            format!("{:.6}", p.mz),
-            format!("{:.4}", p.relative),
-            format!("{:.6e}", p.abundance),
+            digits::text(Kind::Theoretical, p.mz),
+            digits::text(Kind::Theoretical, p.relative),
+            digits::text(Kind::Intensity, p.abundance),
         ])?;
     }
     w.flush()?;

@@ -31,16 +31,23 @@ pub struct PeaksArgs {
 
 #[derive(Serialize)]
 struct PeakRow {
+    #[serde(serialize_with = "mzcore::report::digits::mz")]
     mz: f64,
+    #[serde(serialize_with = "mzcore::report::digits::intensity")]
     intensity: f64,
+    #[serde(serialize_with = "mzcore::report::digits::intensity")]
     area: f64,
+    #[serde(serialize_with = "mzcore::report::digits::ratio")]
     snr: f64,
+    #[serde(serialize_with = "mzcore::report::digits::mz")]
     fwhm: Option<f64>,
 }
 
 #[derive(Serialize)]
 struct PointRow {
+    #[serde(serialize_with = "mzcore::report::digits::mz")]
     mz: f64,
+    #[serde(serialize_with = "mzcore::report::digits::intensity")]
     intensity: f64,
 }
 

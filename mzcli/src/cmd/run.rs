@@ -7,11 +7,11 @@
 
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
-use std::time::{Instant, SystemTime};
+use std::time::{Duration, Instant, SystemTime};
 
 use anyhow::Context;
 use mzcore::compound::{CLUSTER_COLUMNS, COMPOUND_COLUMNS, TRACE_COLUMNS};
-use mzcore::report::{self, escape_text};
+use mzcore::report::{self, digits, escape_text};
 use mzcore::screen::{
     self, FEATURE_COLUMNS, FileReport, FileStatus, FileSummary, ION_COLUMNS, SPECTRUM_COLUMNS,
     ScreenConfig,
@@ -22,6 +22,7 @@ use crate::batch::{
     utc,
 };
 use crate::output;
+use crate::progress::Progress;
 
 /// Arguments of `mzsift run`.
 #[derive(clap::Args, Debug)]
@@ -44,9 +45,13 @@ pub struct RunArgs {
     /// Stop at the first file that fails or is partial (the rest are marked skipped).
     #[arg(long)]
     pub fail_fast: bool,
-    /// No progress lines.
+    /// No progress lines and no summary.
     #[arg(short, long)]
     pub quiet: bool,
+    /// Seconds between progress lines when stderr is not a terminal (0: one line per file
+    /// only). On a terminal a live bar is shown instead.
+    #[arg(long, default_value_t = 10.0, value_name = "SECONDS")]
+    pub progress_seconds: f64,
     /// Also print every unreadable spectrum.
     #[arg(short, long)]
     pub verbose: bool,
@@ -84,47 +89,6 @@ fn reusable(dir: &Path, input: &Path, config_text: &str) -> Option<FileSummary> 
     (same && files_there).then_some(c.summary)
 }
 
-/// Prints progress: a rewritten line on a terminal, timestamped lines otherwise.
-struct Progress {
-    quiet: bool,
-    terminal: bool,
-    total: usize,
-    started: Instant,
-    spectra: usize,
-}
-
-impl Progress {
-    fn file_done(&mut self, done: usize, o: &Outcome) {
-        self.spectra += o.summary.as_ref().map_or(0, |s| s.spectra);
-        if self.quiet {
-            return;
-        }
-        let elapsed = self.started.elapsed().as_secs_f64().max(1e-9);
-        let rate = self.spectra as f64 / elapsed;
-        let eta = elapsed / done as f64 * (self.total - done) as f64;
-        if self.terminal {
-            eprint!(
-                "\r\x1b[2Kmzsift: {done}/{} files, {rate:.0} spectra/s, ETA {eta:.0} s ({}: {})",
-                self.total,
-                o.name,
-                o.status.name()
-            );
-            if done == self.total {
-                eprintln!();
-            }
-        } else {
-            eprintln!(
-                "{} mzsift: {}: {} ({done}/{} files, {:.1} s)",
-                utc(SystemTime::now()),
-                o.path,
-                o.status.name(),
-                self.total,
-                o.seconds
-            );
-        }
-    }
-}
-
 /// Reads the configuration file (if any) and applies `-j`.
 pub fn load_config(path: Option<&Path>, jobs: Option<usize>) -> anyhow::Result<ScreenConfig> {
     let mut config = match path {
@@ -160,13 +124,9 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
     let pool = mzcore::pipeline::thread_pool(config.threads)?;
     let started_at = SystemTime::now();
     let started = Instant::now();
-    let mut progress = Progress {
-        quiet: args.quiet,
-        terminal: std::io::stderr().is_terminal(),
-        total: inputs.len(),
-        started,
-        spectra: 0,
-    };
+    let paths: Vec<&Path> = inputs.iter().map(|i| i.path.as_path()).collect();
+    let interval = Duration::try_from_secs_f64(args.progress_seconds).unwrap_or(Duration::ZERO);
+    let progress = Progress::start(&paths, args.quiet, std::io::stderr().is_terminal(), interval);
     let mut outcomes: Vec<Outcome> = Vec::new();
     let mut stop = false;
     for (i, input) in inputs.into_iter().enumerate() {
@@ -197,7 +157,8 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
                 mtime_unix: mtimes.map(|m| m.0),
             }
         } else {
-            match screen::screen_file(&input.path, &config, &pool) {
+            let counter = progress.begin_file(&input.name, &input.path);
+            match screen::screen_file_counted(&input.path, &config, &pool, counter) {
                 Ok(report) => {
                     if args.verbose {
                         for u in &report.summary.unreadable {
@@ -211,7 +172,10 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
                         config: config_text.clone(),
                         summary: report.summary.clone(),
                     };
-                    let (status, error) = match write_reports(&dir, &report, &completion) {
+                    let written = digits::with_precision(config.report.precision, || {
+                        write_reports(&dir, &report, &completion)
+                    });
+                    let (status, error) = match written {
                         Ok(()) => (report.summary.status, report.summary.error.clone()),
                         Err(e) => {
                             (FileStatus::Failed, escape_text(&format!("writing reports: {e}")))
@@ -219,6 +183,11 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
                     };
                     if status != FileStatus::Ok {
                         output::report(&input.path, &error);
+                    }
+                    if !args.quiet {
+                        for w in &report.summary.warnings {
+                            output::report(&input.path, w);
+                        }
                     }
                     Outcome {
                         path,
@@ -247,10 +216,10 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
         if args.fail_fast && matches!(outcome.status, FileStatus::Failed | FileStatus::Partial) {
             stop = true;
         }
-        progress.file_done(i + 1, &outcome);
+        progress.file_done(i + 1, &outcome, &input.path);
         outcomes.push(outcome);
     }
-    crate::batch::write_batch(out, &outcomes)?;
+    digits::with_precision(config.report.precision, || crate::batch::write_batch(out, &outcomes))?;
     let record = RunRecord {
         tool: "mzsift".into(),
         version: env!("CARGO_PKG_VERSION").into(),
@@ -264,6 +233,12 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
         merged_from: Vec::new(),
     };
     crate::batch::write_run_record(out, &record)?;
+    progress.finish();
+    if !args.quiet {
+        for line in crate::summary::lines(&outcomes, out) {
+            eprintln!("{line}");
+        }
+    }
     let page_ok = !config.report.html
         || crate::cmd::report::write_page(out, &out.join(crate::cmd::report::PAGE), args.quiet);
     let all_ok = page_ok && outcomes.iter().all(|o| o.status == FileStatus::Ok);

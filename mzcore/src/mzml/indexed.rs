@@ -5,12 +5,17 @@ use std::fs::File;
 use std::io::{BufRead, BufReader, Read, Seek, SeekFrom};
 use std::path::Path;
 
-use crate::error::{Error, ErrorKind, Position, Result};
-use crate::mzml::reader::{Reader, ReaderOptions};
+use crate::error::{Error, ErrorKind, Position, Result, Warning};
+use crate::mzml::reader::{INDEX_SEARCH_BYTES, Reader, ReaderOptions};
 use crate::spectrum::Spectrum;
 
 /// Reads single spectra by native id or index through the `indexList` of an indexed mzML
 /// (mzML 1.1.0 idx schema: `indexListOffset` gives the byte offset of `indexList`).
+///
+/// Offsets that miss their element by at most [`INDEX_SEARCH_BYTES`] (writers that point at the
+/// indentation before it) are corrected by a search of that window; an index wrong beyond that
+/// is replaced by one built from reading the file in order. Either is noted in
+/// [`IndexedReader::warnings`].
 ///
 /// # Examples
 ///
@@ -36,6 +41,8 @@ pub struct IndexedReader<R: BufRead + Seek> {
     header: crate::mzml::reader::Header,
     index: Vec<(String, u64)>,
     by_id: HashMap<String, usize>,
+    warnings: Vec<Warning>,
+    scanned: bool,
 }
 
 impl IndexedReader<BufReader<File>> {
@@ -54,11 +61,87 @@ impl<R: BufRead + Seek> IndexedReader<R> {
     /// Reads the header and the index of `inner` with `options` for later spectra.
     pub fn with_options(mut inner: R, options: ReaderOptions) -> Result<Self> {
         let header = read_header(&mut inner, options)?;
-        let list_offset = find_index_list_offset(&mut inner)?;
-        inner.seek(SeekFrom::Start(list_offset))?;
-        let index = read_index_list(&mut inner, list_offset, options)?;
-        let by_id = index.iter().enumerate().map(|(i, (id, _))| (id.clone(), i)).collect();
-        Ok(IndexedReader { inner, options, header, index, by_id })
+        let declared = find_index_list_offset(&mut inner)?;
+        let mut r = IndexedReader {
+            inner,
+            options,
+            header,
+            index: Vec::new(),
+            by_id: HashMap::new(),
+            warnings: Vec::new(),
+            scanned: false,
+        };
+        let found = find_start_tag(&mut r.inner, declared, b"indexList")?;
+        let listed = match found {
+            Some(at) => {
+                if at != declared {
+                    r.warnings.push(Warning::at(
+                        format!(
+                            "indexListOffset {declared} is {} bytes from <indexList> (at {at}); \
+                             found within the {INDEX_SEARCH_BYTES}-byte search window",
+                            at.abs_diff(declared)
+                        ),
+                        Position { field: Some("indexListOffset".into()), ..Position::at_byte(at) },
+                    ));
+                }
+                r.inner.seek(SeekFrom::Start(at))?;
+                read_index_list(&mut r.inner, at, options).map_err(|e| e.to_string())
+            }
+            None => Err(format!(
+                "no <indexList> within {INDEX_SEARCH_BYTES} bytes of indexListOffset {declared}"
+            )),
+        };
+        match listed {
+            Ok(index) => r.set_index(index),
+            Err(why) => {
+                r.warnings.push(Warning::at(
+                    format!("{why}: the index is not used, spectra located by reading the file"),
+                    Position {
+                        field: Some("indexListOffset".into()),
+                        ..Position::at_byte(declared)
+                    },
+                ));
+                r.scan()?;
+            }
+        }
+        Ok(r)
+    }
+
+    /// What was odd about the index and how it was worked around (offsets corrected by the
+    /// bounded search, or the index replaced by a scan of the file).
+    pub fn warnings(&self) -> &[Warning] {
+        &self.warnings
+    }
+
+    fn set_index(&mut self, index: Vec<(String, u64)>) {
+        self.by_id = index.iter().enumerate().map(|(i, (id, _))| (id.clone(), i)).collect();
+        self.index = index;
+    }
+
+    /// Replaces the index by the spectra's real offsets, read in file order.
+    fn scan(&mut self) -> Result<()> {
+        self.inner.seek(SeekFrom::Start(0))?;
+        let mut reader =
+            Reader::with_options(&mut self.inner, self.options.verify_checksum(false))?;
+        let mut index = Vec::new();
+        let mut s = Spectrum::default();
+        loop {
+            match reader.read_spectrum(&mut s) {
+                Ok(true) => index.extend(reader.last_start().map(|at| (s.meta.id.clone(), at))),
+                Ok(false) => break,
+                // A bad spectrum keeps its place, so that asking for it gives its error.
+                Err(e) => match (e.position().spectrum_id.clone(), reader.last_start()) {
+                    (Some(id), Some(at)) if e.position().spectrum_index.is_some() => {
+                        index.push((id, at));
+                    }
+                    _ => {}
+                },
+            }
+        }
+        drop(reader);
+        self.scanned = true;
+        self.set_index(index);
+        Ok(())
     }
 
     /// Number of spectra in the index.
@@ -95,7 +178,68 @@ impl<R: BufRead + Seek> IndexedReader<R> {
         self.by_index(i)
     }
 
+    /// Reads the spectrum `id` at `offset`, else at the nearest `<spectrum>` tag within
+    /// [`INDEX_SEARCH_BYTES`], else (once) through an index rebuilt by scanning the file.
     fn read_at(&mut self, id: &str, offset: u64) -> Result<Spectrum> {
+        let candidates = nearby_start_tags(&mut self.inner, offset, b"spectrum")?;
+        let mut first = None;
+        if candidates.first() == Some(&offset) {
+            // A spectrum starts right there: its own error (a bad spectrum) is the answer.
+            match self.read_exactly_at(id, offset) {
+                Err(e) if matches!(e.kind(), ErrorKind::IndexMismatch { .. }) => first = Some(e),
+                other => return other,
+            }
+        }
+        for &at in &candidates {
+            if at == offset {
+                continue;
+            }
+            if let Ok(s) = self.read_exactly_at(id, at) {
+                // Corrected in place: the next lookup goes straight there, noted once.
+                if let Some(&i) = self.by_id.get(id) {
+                    self.index[i].1 = at;
+                }
+                self.warnings.push(Warning::at(
+                    format!(
+                        "index offset {offset} of '{id}' is {} bytes from its element (at {at}); \
+                         found within the {INDEX_SEARCH_BYTES}-byte search window",
+                        at.abs_diff(offset)
+                    ),
+                    Position { spectrum_id: Some(id.to_owned()), ..Position::at_byte(at) },
+                ));
+                return Ok(s);
+            }
+        }
+        if self.scanned {
+            return Err(first.unwrap_or_else(|| {
+                Error::at(
+                    ErrorKind::IndexMismatch {
+                        id: id.to_owned(),
+                        indexed: offset,
+                        actual: u64::MAX,
+                    },
+                    Position { spectrum_id: Some(id.to_owned()), ..Position::at_byte(offset) },
+                )
+            }));
+        }
+        self.warnings.push(Warning::at(
+            format!(
+                "no spectrum '{id}' within {INDEX_SEARCH_BYTES} bytes of its index offset \
+                 {offset}: the index is not used, spectra located by reading the file"
+            ),
+            Position { spectrum_id: Some(id.to_owned()), ..Position::at_byte(offset) },
+        ));
+        self.scan()?;
+        match self.by_id.get(id).map(|&i| self.index[i].1) {
+            Some(at) => self.read_exactly_at(id, at),
+            None => Err(Error::at(
+                ErrorKind::NotFound(format!("with id '{id}' (listed in the index only)")),
+                Position { spectrum_id: Some(id.to_owned()), ..Position::at_byte(offset) },
+            )),
+        }
+    }
+
+    fn read_exactly_at(&mut self, id: &str, offset: u64) -> Result<Spectrum> {
         self.inner.seek(SeekFrom::Start(offset))?;
         let mut reader =
             Reader::continue_at(&mut self.inner, self.options, self.header.clone(), offset)?;
@@ -125,6 +269,51 @@ fn read_header<R: BufRead + Seek>(
     Ok(reader.header().clone())
 }
 
+/// Reads the bytes within [`INDEX_SEARCH_BYTES`] of `offset` (plus room for the tag name).
+fn window<R: Read + Seek>(inner: &mut R, offset: u64, name: &[u8]) -> Result<(u64, Vec<u8>)> {
+    let len = inner.seek(SeekFrom::End(0))?;
+    let start = offset.saturating_sub(INDEX_SEARCH_BYTES).min(len);
+    let end = offset.saturating_add(INDEX_SEARCH_BYTES + name.len() as u64 + 2).min(len);
+    inner.seek(SeekFrom::Start(start))?;
+    let mut buf = Vec::with_capacity((end - start) as usize);
+    inner.take(end - start).read_to_end(&mut buf)?;
+    Ok((start, buf))
+}
+
+/// Offsets of the start tags `<name` or `<prefix:name` (followed by white space, `>` or `/`)
+/// within [`INDEX_SEARCH_BYTES`] of `offset`, nearest first.
+fn nearby_start_tags<R: Read + Seek>(inner: &mut R, offset: u64, name: &[u8]) -> Result<Vec<u64>> {
+    let (start, buf) = window(inner, offset, name)?;
+    let mut found: Vec<u64> = start_tags(&buf, name).map(|i| start + i as u64).collect();
+    found.retain(|at| at.abs_diff(offset) <= INDEX_SEARCH_BYTES);
+    found.sort_by_key(|at| at.abs_diff(offset));
+    Ok(found)
+}
+
+/// The nearest start tag `name` within [`INDEX_SEARCH_BYTES`] of `offset`.
+fn find_start_tag<R: Read + Seek>(inner: &mut R, offset: u64, name: &[u8]) -> Result<Option<u64>> {
+    Ok(nearby_start_tags(inner, offset, name)?.first().copied())
+}
+
+/// Positions of the `<` of every start tag with local name `name` in `buf`.
+fn start_tags<'a>(buf: &'a [u8], name: &'a [u8]) -> impl Iterator<Item = usize> + 'a {
+    memchr::memmem::find_iter(buf, name).filter_map(move |i| {
+        let after = buf.get(i + name.len()).copied();
+        if !matches!(after, Some(b' ' | b'\t' | b'\r' | b'\n' | b'>' | b'/')) {
+            return None;
+        }
+        let mut j = i.checked_sub(1)?;
+        if buf[j] == b':' {
+            // A namespace prefix: letters, digits, `-`, `_`, `.` back to the `<`.
+            while j > 0 && matches!(buf[j - 1], b'a'..=b'z' | b'A'..=b'Z' | b'0'..=b'9' | b'-' | b'_' | b'.') {
+                j -= 1;
+            }
+            j = j.checked_sub(1)?;
+        }
+        (buf[j] == b'<').then_some(j)
+    })
+}
+
 /// Finds `<indexListOffset>N</indexListOffset>` in the last KiBs of the file.
 fn find_index_list_offset<R: Read + Seek>(inner: &mut R) -> Result<u64> {
     let len = inner.seek(SeekFrom::End(0))?;
@@ -152,12 +341,7 @@ fn find_index_list_offset<R: Read + Seek>(inner: &mut R) -> Result<u64> {
             Position::at_byte(at),
         )
     })?;
-    if offset >= len {
-        return Err(Error::at(
-            ErrorKind::IndexMismatch { id: "indexList".into(), indexed: offset, actual: u64::MAX },
-            Position::at_byte(at),
-        ));
-    }
+    // An offset beyond the end is searched for like any other; the index is then not used.
     Ok(offset)
 }
 

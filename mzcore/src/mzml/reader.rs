@@ -15,6 +15,7 @@
 //! are returned after the last spectrum.
 
 mod body;
+mod format;
 mod params;
 mod source;
 
@@ -30,7 +31,7 @@ use body::{BodyError, BodyLimits, ChromFacts};
 pub(crate) use params::Header;
 use source::{EventTooLarge, GzipRatioTooLarge, Inner, Tracked};
 
-use crate::error::{Error, ErrorKind, Position, Result};
+use crate::error::{Error, ErrorKind, Position, Result, Warning};
 use crate::mzml::binary::BinaryEncoding;
 use crate::mzml::cv;
 use crate::spectrum::{ArrayKind, Chromatogram, Spectrum};
@@ -192,6 +193,7 @@ pub struct Reader<R: BufRead> {
     tic: Option<Chromatogram>,
     encodings: Vec<BinaryEncoding>,
     trailing: VecDeque<Error>,
+    warnings: Vec<Warning>,
     gzip: bool,
     base: u64,
     last_start: Option<u64>,
@@ -253,6 +255,7 @@ impl<R: BufRead> Reader<R> {
             tic: None,
             encodings: Vec::new(),
             trailing: VecDeque::new(),
+            warnings: Vec::new(),
             gzip,
             base: 0,
             last_start: None,
@@ -299,6 +302,13 @@ impl<R: BufRead> Reader<R> {
     /// The spectrum offsets listed in the index (filled once the index has been read).
     pub fn index(&self) -> &[(String, u64)] {
         &self.spectrum_index
+    }
+
+    /// What was odd about the document but cost no data (index offsets a few bytes off, or an
+    /// index that disagrees with the document and was not used), final once the reader
+    /// returned `None`. A file with warnings only was still read in full.
+    pub fn warnings(&self) -> &[Warning] {
+        &self.warnings
     }
 
     /// The result of checksum verification (final once the reader returned `None`).
@@ -385,6 +395,14 @@ impl<R: BufRead> Reader<R> {
             self.xml.get_mut().start_event();
             let event = match self.xml.read_event_into(&mut self.buf) {
                 Ok(ev) => ev,
+                Err(e) if self.state == State::Start && self.base == 0 => {
+                    // Markup the tokenizer cannot read before any root: not XML at all.
+                    let at = error_offset(&self.xml, &e);
+                    if matches!(e, quick_xml::Error::Io(_)) {
+                        return Err(self.fatal_xml(e, at));
+                    }
+                    return Err(self.fatal(format::unreadable_markup(&e), at));
+                }
                 Err(e) => {
                     let at = self.base + error_offset(&self.xml, &e);
                     return Err(self.fatal_xml(e, at));
@@ -431,9 +449,8 @@ impl<R: BufRead> Reader<R> {
                 Event::Text(t)
                     if self.state == State::Start && !t.iter().all(u8::is_ascii_whitespace) =>
                 {
-                    return Err(
-                        self.fatal(ErrorKind::NotMzml("text before the root element".into()), pos)
-                    );
+                    let kind = format::not_xml(&t);
+                    return Err(self.fatal(kind, pos));
                 }
                 Event::Eof => return self.end_of_input(pos),
                 _ => {}
@@ -450,6 +467,12 @@ impl<R: BufRead> Reader<R> {
         empty: bool,
         spectrum: &mut Spectrum,
     ) -> Option<Result<bool>> {
+        if self.state == State::Start || (local == b"mzML" && self.header.run_id.is_none()) {
+            // The format and version, from the root (and the <mzML> inside <indexedmzML>).
+            if let Some(kind) = format::unsupported(local, e) {
+                return Some(Err(self.fatal(kind, pos)));
+            }
+        }
         if self.state == State::Start {
             match local {
                 b"indexedmzML" => self.header.indexed = true,
@@ -858,28 +881,86 @@ impl<R: BufRead> Reader<R> {
         }
     }
 
+    /// Compares the index with where the elements really are. An offset within
+    /// [`INDEX_SEARCH_BYTES`] of its element (writers that point at the indentation before it)
+    /// is a warning; one beyond is a warning that the index was not used (this reader reads in
+    /// file order anyway). Only an entry naming a spectrum the document lacks is an error:
+    /// data the file promises is missing.
     fn check_index(&mut self) {
+        let slack = INDEX_SEARCH_BYTES;
         if let (Some(declared), Some(actual)) = (self.index_list_offset, self.index_list_at) {
             if declared != actual {
-                self.trailing.push_back(Error::at(
-                    ErrorKind::IndexMismatch { id: "indexList".into(), indexed: declared, actual },
-                    Position { field: Some("indexListOffset".into()), ..Position::at_byte(actual) },
-                ));
+                let off = declared.abs_diff(actual);
+                let message = if off <= slack {
+                    format!(
+                        "indexListOffset {declared} is {off} bytes from <indexList> (at {actual}); \
+                         found within the {slack}-byte search window"
+                    )
+                } else {
+                    format!(
+                        "indexListOffset {declared} is {off} bytes from <indexList> (at {actual}), \
+                         beyond the {slack}-byte search window: the index is not used, spectra \
+                         read in file order"
+                    )
+                };
+                let at =
+                    Position { field: Some("indexListOffset".into()), ..Position::at_byte(actual) };
+                self.warnings.push(Warning::at(message, at));
             }
         }
-        let mut bad = self.spectrum_index.iter().filter_map(|(id, off)| {
-            let actual = self.actual_offsets.get(id).copied().unwrap_or(u64::MAX);
-            (actual != *off).then(|| (id.clone(), *off, actual))
-        });
-        if let Some((id, indexed, actual)) = bad.next() {
-            let more = bad.count();
+        let mut near: Vec<(&str, u64, u64)> = Vec::new();
+        let mut far: Vec<(&str, u64, u64)> = Vec::new();
+        let mut absent: Vec<(&str, u64)> = Vec::new();
+        for (id, off) in &self.spectrum_index {
+            match self.actual_offsets.get(id).copied() {
+                None => absent.push((id, *off)),
+                Some(actual) if actual == *off => {}
+                Some(actual) if actual.abs_diff(*off) <= slack => near.push((id, *off, actual)),
+                Some(actual) => far.push((id, *off, actual)),
+            }
+        }
+        let mut warnings = Vec::new();
+        if let Some(&(id, indexed, actual)) = near.first() {
+            let most = near.iter().map(|(_, i, a)| i.abs_diff(*a)).max().unwrap_or(0);
+            warnings.push(Warning::at(
+                format!(
+                    "{} index offsets are off by up to {most} bytes (first: '{id}' indexed at \
+                     {indexed}, element at {actual}); found within the {slack}-byte search window",
+                    near.len()
+                ),
+                Position {
+                    spectrum_id: Some(id.to_owned()),
+                    field: Some("index".into()),
+                    ..Position::at_byte(indexed)
+                },
+            ));
+        }
+        if let Some(&(id, indexed, actual)) = far.first() {
+            warnings.push(Warning::at(
+                format!(
+                    "{} index offsets are beyond the {slack}-byte search window of their \
+                     elements (first: '{id}' indexed at {indexed}, element at {actual}): the \
+                     index is not used, spectra read in file order",
+                    far.len()
+                ),
+                Position {
+                    spectrum_id: Some(id.to_owned()),
+                    field: Some("index".into()),
+                    ..Position::at_byte(indexed)
+                },
+            ));
+        }
+        self.warnings.extend(warnings);
+        if let Some(&(id, indexed)) = absent.first() {
+            let more = absent.len() - 1;
             let field = if more > 0 {
-                format!("index ({more} more entries disagree)")
+                format!("index ({more} more entries name no spectrum of the document)")
             } else {
                 "index".to_owned()
             };
+            let id = id.to_owned();
             self.trailing.push_back(Error::at(
-                ErrorKind::IndexMismatch { id: id.clone(), indexed, actual },
+                ErrorKind::IndexMismatch { id: id.clone(), indexed, actual: u64::MAX },
                 Position {
                     spectrum_id: Some(id),
                     field: Some(field),
@@ -909,6 +990,12 @@ impl<R: BufRead> Reader<R> {
         };
     }
 }
+
+/// How far (bytes, either side) an index offset may lie from the element it names and still be
+/// taken as naming it: writers that point at the newline and indentation before an element, or
+/// a few bytes into it. Beyond this the index is not trusted (mzML 1.1.0 idx schema: an offset
+/// is that of the element's `<`).
+pub const INDEX_SEARCH_BYTES: u64 = 256;
 
 /// Elements whose start tag hands over to a helper that reads up to their end tag.
 fn reads_to_end(local: &[u8]) -> bool {

@@ -8,10 +8,13 @@ use serde::{Deserialize, Serialize};
 pub struct ReportSettings {
     /// Write `OUTDIR/report.html` at the end of `mzsift run` (see [`crate::html`]).
     pub html: bool,
+    /// Digits of numbers: `measured` (per kind of quantity, see the README) or `full`
+    /// (shortest round-trip digits).
+    pub precision: crate::report::digits::Precision,
 }
 
 impl Default for ReportSettings {
     fn default() -> Self {
-        ReportSettings { html: true }
+        ReportSettings { html: true, precision: Default::default() }
     }
 }
