@@ -254,10 +254,11 @@ pub fn utc(t: SystemTime) -> String {
     )
 }
 
-/// Removes `batch.tsv` and `run.json` of an earlier run from `out`, so that an interrupted
+/// Removes `batch.tsv`, `run.json` and the batch-view tables of an earlier run from `out`, so that an interrupted
 /// run or merge never leaves batch files that look like its own.
 pub fn remove_stale_batch_files(out: &Path) -> anyhow::Result<()> {
-    for stale in ["batch.tsv", "run.json"] {
+    let view = crate::batch_view::BATCH_VIEW_FILES;
+    for stale in ["batch.tsv", "run.json"].iter().chain(&view) {
         let p = out.join(stale);
         if p.exists() {
             std::fs::remove_file(&p).with_context(|| p.display().to_string())?;

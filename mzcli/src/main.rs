@@ -4,6 +4,7 @@
 //! messages to stderr (`mzsift: <file>: <where>: <cause>`), and maps outcomes to exit codes.
 
 mod batch;
+mod batch_view;
 mod cmd;
 mod output;
 

@@ -10,6 +10,8 @@
 //! - [`mzml::Writer`] writes indexed or plain mzML with any supported encoding;
 //! - [`screen::screen_file`] screens one file end to end into a [`screen::FileReport`], and
 //!   [`qc::QcRules`] evaluates a QC gate on it;
+//! - [`batch::build`] lines up the compounds of many files (alignment, gap filling, blanks
+//!   and replicates) into a [`batch::BatchView`];
 //! - [`Error`] carries an [`ErrorKind`] and a [`Position`] (byte offset, spectrum index and id).
 //!
 //! # Example
@@ -33,6 +35,7 @@
 //! # Ok::<_, mzcore::Error>(())
 //! ```
 
+pub mod batch;
 pub mod centroid;
 pub mod chem;
 pub mod compound;

@@ -92,6 +92,8 @@ pub struct ScreenConfig {
     pub centroid: CentroidParams,
     /// Halogen and nitrogen-rule flagging, and feature grouping.
     pub flag: FlagSettings,
+    /// The batch view across files (alignment, blanks, gap filling).
+    pub batch: crate::batch::BatchSettings,
 }
 
 impl ScreenConfig {
@@ -122,6 +124,7 @@ impl ScreenConfig {
     pub fn validate(&self) -> Result<()> {
         self.centroid.validate()?;
         self.flag.validate()?;
+        self.batch.validate()?;
         if self.pipeline.in_flight == 0 {
             return Err(Error::new(ErrorKind::Config(
                 "pipeline.in_flight must be at least 1".into(),

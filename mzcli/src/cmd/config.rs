@@ -75,6 +75,25 @@ const DOCS: &[(&str, &str)] = &[
     ),
     ("flag.feature_min_scans", "least consecutive MS1 scans for a feature"),
     ("flag.feature_max_gap", "MS1 scans that may be missing inside a feature"),
+    ("batch.blanks", "glob patterns on file names marking blanks (without a --samples sheet)"),
+    ("batch.qc", "glob patterns marking quality-control injections"),
+    ("batch.standards", "glob patterns marking standards"),
+    ("batch.mass_tolerance_ppm", "matching compounds across files at high resolution, ppm"),
+    ("batch.mass_tolerance_da", "... and at unit resolution, u"),
+    ("batch.rt_tolerance_min", "retention-time tolerance after drift correction, minutes"),
+    ("batch.rt_drift_max_min", "largest drift between injections (first matching pass), minutes"),
+    ("batch.anchor_fraction", "fraction of files a compound must be in to anchor the drift fit"),
+    (
+        "batch.blank_factor",
+        "above_blank when a sample's area reaches this times the largest blank area (common practice 3)",
+    ),
+    (
+        "batch.carry_over_factor",
+        "carry-over suspect: the injection before a blank had this times its area",
+    ),
+    ("batch.fill", "extract undetected compounds from the files (gap filling)"),
+    ("batch.fill_min_scans", "least scans with signal for a filled value"),
+    ("batch.fill_max_gap", "scans without signal bridged inside a filled peak"),
 ];
 
 /// The TOML text with a `# ...` comment line above every documented key.

@@ -33,6 +33,12 @@ pub struct MergeArgs {
     /// run's own under `merged_from`).
     #[arg(long)]
     pub allow_mixed: bool,
+    /// Sample sheet for the batch view (as for `mzsift run --samples`).
+    #[arg(long, value_hint = clap::ValueHint::FilePath)]
+    pub samples: Option<PathBuf>,
+    /// No summary line.
+    #[arg(short, long)]
+    pub quiet: bool,
 }
 
 /// One input of one run, with what its report folder holds.
@@ -97,7 +103,19 @@ pub fn run(args: &MergeArgs) -> anyhow::Result<u8> {
             return Ok(output::USAGE);
         }
     };
-    write(args, &runs, entries)
+    let ids: Vec<(String, String)> =
+        entries.iter().map(|e| (e.record.report_folder.clone(), e.record.path.clone())).collect();
+    let config = &runs[0].config;
+    let sheet = match crate::batch_view::read_sheet(args.samples.as_deref())
+        .and_then(|s| crate::batch_view::assign(&ids, s.as_ref(), config).map(|_| s))
+    {
+        Ok(s) => s,
+        Err(e) => {
+            eprintln!("mzsift: {e:#}");
+            return Ok(output::USAGE);
+        }
+    };
+    write(args, &runs, entries, sheet)
 }
 
 fn plan(args: &MergeArgs) -> anyhow::Result<(Vec<RunRecord>, Vec<Entry>)> {
@@ -161,7 +179,12 @@ fn plan(args: &MergeArgs) -> anyhow::Result<(Vec<RunRecord>, Vec<Entry>)> {
     Ok((runs, entries))
 }
 
-fn write(args: &MergeArgs, runs: &[RunRecord], entries: Vec<Entry>) -> anyhow::Result<u8> {
+fn write(
+    args: &MergeArgs,
+    runs: &[RunRecord],
+    entries: Vec<Entry>,
+    sheet: Option<mzcore::batch::SampleSheet>,
+) -> anyhow::Result<u8> {
     let out = &args.out;
     std::fs::create_dir_all(out).with_context(|| out.display().to_string())?;
     crate::batch::remove_stale_batch_files(out)?;
@@ -201,6 +224,12 @@ fn write(args: &MergeArgs, runs: &[RunRecord], entries: Vec<Entry>) -> anyhow::R
     }
     crate::batch::write_batch(out, &outcomes)?;
     let first = &runs[0];
+    let pool = mzcore::pipeline::thread_pool(first.config.threads)?;
+    let counts =
+        pool.install(|| crate::batch_view::write(out, &outcomes, sheet.as_ref(), &first.config))?;
+    if !args.quiet {
+        eprintln!("{}", crate::batch_view::summary_line(&counts));
+    }
     let record = RunRecord {
         tool: "mzsift".into(),
         version: first.version.clone(),

@@ -49,6 +49,10 @@ pub struct RunArgs {
     /// Also print every unreadable spectrum.
     #[arg(short, long)]
     pub verbose: bool,
+    /// Sample sheet (TSV with columns `file sample kind`, rows in acquisition order) for the
+    /// batch view; without it, `[batch]` globs tell blanks and every file is its own sample.
+    #[arg(long, value_hint = clap::ValueHint::FilePath)]
+    pub samples: Option<PathBuf>,
 }
 
 fn write_reports(dir: &Path, report: &FileReport, completion: &Completion) -> mzcore::Result<()> {
@@ -147,6 +151,18 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
     };
     let config_text = config.to_toml();
     let inputs = discover(&args.inputs)?;
+    // A sheet that does not parse or does not fit the inputs is a usage error, found first.
+    let ids: Vec<(String, String)> =
+        inputs.iter().map(|i| (i.name.clone(), i.path.display().to_string())).collect();
+    let sheet = match crate::batch_view::read_sheet(args.samples.as_deref())
+        .and_then(|s| crate::batch_view::assign(&ids, s.as_ref(), &config).map(|_| s))
+    {
+        Ok(s) => s,
+        Err(e) => {
+            eprintln!("mzsift: {e:#}");
+            return Ok(output::USAGE);
+        }
+    };
     if inputs.is_empty() && !args.quiet {
         eprintln!("mzsift: no .mzML or .mzML.gz files found under the inputs given");
     }
@@ -247,6 +263,11 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
         outcomes.push(outcome);
     }
     crate::batch::write_batch(out, &outcomes)?;
+    let counts =
+        pool.install(|| crate::batch_view::write(out, &outcomes, sheet.as_ref(), &config))?;
+    if !args.quiet {
+        eprintln!("{}", crate::batch_view::summary_line(&counts));
+    }
     let record = RunRecord {
         tool: "mzsift".into(),
         version: env!("CARGO_PKG_VERSION").into(),
