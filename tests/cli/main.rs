@@ -2,6 +2,7 @@
 
 mod util;
 
+mod batch_view;
 mod check;
 mod chem;
 mod demo;
