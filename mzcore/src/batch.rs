@@ -66,6 +66,7 @@ mod tables;
 
 use std::collections::{BTreeMap, HashMap};
 use std::path::PathBuf;
+use std::sync::Arc;
 
 use ndarray::Array2;
 use serde::{Deserialize, Serialize};
@@ -538,6 +539,9 @@ impl Alignment {
         let mut matrix = Array2::from_elem((n_files, n_rows), f64::NAN);
         let mut compounds = Vec::with_capacity(n_rows);
         let mut detections = Vec::new();
+        let names: Vec<Arc<str>> = self.files.iter().map(|f| Arc::from(f.name.as_str())).collect();
+        let samples: Vec<Arc<str>> =
+            self.files.iter().map(|f| Arc::from(f.sample.as_str())).collect();
         for (r, row) in self.rows.iter().enumerate() {
             let in_class = &self.members_of_class[&row.group.class];
             let area = |f: usize| cells[r][f].and_then(|c| c.area);
@@ -587,7 +591,7 @@ impl Alignment {
             for &f in in_class {
                 by_sample.entry(self.files[f].sample.as_str()).or_default().push(f);
             }
-            let mut replicate: HashMap<usize, (String, Option<f64>)> = HashMap::new();
+            let mut replicate: HashMap<usize, ((usize, usize), Option<f64>)> = HashMap::new();
             for fs in by_sample.values() {
                 let k = fs
                     .iter()
@@ -596,7 +600,7 @@ impl Alignment {
                 let areas: Vec<f64> = fs.iter().filter_map(|&f| area(f)).collect();
                 let rsd = rsd_percent(&areas);
                 for &f in fs {
-                    replicate.insert(f, (format!("{k}/{}", fs.len()), rsd));
+                    replicate.insert(f, ((k, fs.len()), rsd));
                 }
             }
             let best = &self.files[row.best.0].compounds[row.best.1];
@@ -622,11 +626,12 @@ impl Alignment {
             for &f in in_class {
                 let c = cells[r][f].unwrap_or(EMPTY_CELL);
                 let file = &self.files[f];
-                let (replicates, replicate_rsd_percent) = replicate.remove(&f).unwrap_or_default();
+                let ((replicates_detected, replicate_injections), replicate_rsd_percent) =
+                    replicate.remove(&f).unwrap_or_default();
                 detections.push(Detection {
                     batch_compound,
-                    file: file.name.clone(),
-                    sample: file.sample.clone(),
+                    file: names[f].clone(),
+                    sample: samples[f].clone(),
                     kind: file.kind,
                     detected: c.detected.is_some(),
                     filled: c.filled,
@@ -636,7 +641,8 @@ impl Alignment {
                     mz_error_ppm: c.mz_error_ppm,
                     compound: c.detected,
                     blank_ratio: c.area.and_then(ratio),
-                    replicates,
+                    replicates_detected,
+                    replicate_injections,
                     replicate_rsd_percent,
                     carry_over: carry[f],
                 });
@@ -723,14 +729,14 @@ pub struct AlignedCompound {
 }
 
 /// One file x compound cell: a row of `detections.tsv`.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct Detection {
     /// Row number of the aligned compound.
     pub batch_compound: usize,
     /// Report folder name of the file.
-    pub file: String,
+    pub file: Arc<str>,
     /// Its sample.
-    pub sample: String,
+    pub sample: Arc<str>,
     /// Its kind.
     pub kind: SampleKind,
     /// Detected by the file's own compound stage.
@@ -750,8 +756,10 @@ pub struct Detection {
     pub compound: Option<usize>,
     /// Area over the largest blank area.
     pub blank_ratio: Option<f64>,
-    /// Injections of this sample that detected it, `k/n`.
-    pub replicates: String,
+    /// Injections of this sample that detected it (`k` of `k/n`).
+    pub replicates_detected: usize,
+    /// Injections of this sample (`n` of `k/n`).
+    pub replicate_injections: usize,
     /// RSD of the areas of this sample's injections, percent.
     pub replicate_rsd_percent: Option<f64>,
     /// This blank holds it right after a much stronger injection.

@@ -55,11 +55,30 @@ struct Row {
     mass: f64,
     rt: f64,
     members: Vec<usize>,
+    /// Bit set of the files of the members.
+    files: Vec<u64>,
 }
 
 impl Row {
-    fn has_file(&self, items: &[Item], file: usize) -> bool {
-        self.members.iter().any(|&m| items[m].file == file)
+    fn new(mass: f64, rt: f64) -> Row {
+        Row { mass, rt, members: Vec::new(), files: Vec::new() }
+    }
+
+    fn has_file(&self, file: usize) -> bool {
+        self.files.get(file / 64).is_some_and(|w| w & (1 << (file % 64)) != 0)
+    }
+
+    fn add(&mut self, i: usize, file: usize) {
+        if self.files.len() <= file / 64 {
+            self.files.resize(file / 64 + 1, 0);
+        }
+        self.files[file / 64] |= 1 << (file % 64);
+        self.members.push(i);
+    }
+
+    fn clear(&mut self) {
+        self.members.clear();
+        self.files.iter_mut().for_each(|w| *w = 0);
     }
 }
 
@@ -127,13 +146,15 @@ fn seed(order: &[usize], items: &[Item], rows: &mut Vec<Row>, index: &mut Index,
         let it = &items[i];
         let best = index
             .near(rows, it, rt_tol)
-            .filter(|&(_, r)| !rows[r].has_file(items, it.file))
+            .filter(|&(_, r)| !rows[r].has_file(it.file))
             .min_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
         match best {
-            Some((_, r)) => rows[r].members.push(i),
+            Some((_, r)) => rows[r].add(i, it.file),
             None => {
                 index.add(rows.len(), it.mass);
-                rows.push(Row { mass: it.mass, rt: it.rt, members: vec![i] });
+                let mut row = Row::new(it.mass, it.rt);
+                row.add(i, it.file);
+                rows.push(row);
             }
         }
     }
@@ -168,7 +189,7 @@ pub(crate) fn cluster(items: &[Item], tol: MassTolerance, rt_tol: f64) -> Vec<Ve
             let mut t: Vec<f64> = row.members.iter().map(|&i| items[i].rt).collect();
             row.mass = median(&mut m);
             row.rt = median(&mut t);
-            row.members.clear();
+            row.clear();
         }
         let mut index = Index::new(tol, &rows);
         let mut pairs: Vec<(f64, usize, usize)> = Vec::new();
@@ -179,8 +200,8 @@ pub(crate) fn cluster(items: &[Item], tol: MassTolerance, rt_tol: f64) -> Vec<Ve
         let mut placed = vec![usize::MAX; items.len()];
         for (_, k, r) in pairs {
             let i = order[k];
-            if placed[i] == usize::MAX && !rows[r].has_file(items, items[i].file) {
-                rows[r].members.push(i);
+            if placed[i] == usize::MAX && !rows[r].has_file(items[i].file) {
+                rows[r].add(i, items[i].file);
                 placed[i] = r;
             }
         }

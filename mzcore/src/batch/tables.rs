@@ -78,7 +78,7 @@ fn odd_word(o: OddNominal) -> &'static str {
 }
 
 #[derive(Serialize)]
-struct DetectionRow<'a> {
+struct DetectionRow {
     batch_compound: usize,
     file: String,
     sample: String,
@@ -91,7 +91,7 @@ struct DetectionRow<'a> {
     mz_error_ppm: Option<f64>,
     compound: Option<usize>,
     blank_ratio: Option<f64>,
-    replicates: &'a str,
+    replicates: String,
     replicate_rsd_percent: Option<f64>,
     carry_over: bool,
 }
@@ -142,7 +142,7 @@ impl BatchView {
     /// Writes `detections.tsv` ([`DETECTION_COLUMNS`]), one row per aligned compound and file
     /// of its class.
     pub fn write_detections(&self, out: &mut dyn Write) -> Result<()> {
-        let rows: Vec<DetectionRow<'_>> = self.detections.iter().map(detection_row).collect();
+        let rows: Vec<DetectionRow> = self.detections.iter().map(detection_row).collect();
         write_tsv(out, DETECTION_COLUMNS, &rows)
     }
 
@@ -166,7 +166,7 @@ impl BatchView {
     }
 }
 
-fn detection_row(d: &Detection) -> DetectionRow<'_> {
+fn detection_row(d: &Detection) -> DetectionRow {
     let r = |x: Option<f64>, digits| x.filter(|v| v.is_finite()).map(|v| round(v, digits));
     DetectionRow {
         batch_compound: d.batch_compound,
@@ -181,7 +181,7 @@ fn detection_row(d: &Detection) -> DetectionRow<'_> {
         mz_error_ppm: r(d.mz_error_ppm, 3),
         compound: d.compound,
         blank_ratio: r(d.blank_ratio, 3),
-        replicates: &d.replicates,
+        replicates: format!("{}/{}", d.replicates_detected, d.replicate_injections),
         replicate_rsd_percent: r(d.replicate_rsd_percent, 2),
         carry_over: d.carry_over,
     }

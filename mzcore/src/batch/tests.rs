@@ -174,13 +174,13 @@ fn every_compound_is_one_row_with_blanks_replicates_and_carry_over() {
     assert_eq!(carry, [false, false, false, false, false, true, false, false]);
     // C: detected in s3a, filled in s3b.
     let c = by_lib[&2].batch_compound;
-    let s3b = v.detections().iter().find(|d| d.batch_compound == c && d.file == "s3b").unwrap();
+    let s3b = v.detections().iter().find(|d| d.batch_compound == c && &*d.file == "s3b").unwrap();
     assert_eq!((s3b.detected, s3b.filled, s3b.area), (false, Some(true), Some(360.0)));
-    assert_eq!(s3b.replicates, "1/2");
+    assert_eq!((s3b.replicates_detected, s3b.replicate_injections), (1, 2));
     let rsd = s3b.replicate_rsd_percent.unwrap();
     // Areas 3000 and 360: mean 1680, sample sd 1866.8 -> 111.1 %.
     assert!((rsd - 111.12).abs() < 0.05, "{rsd}");
-    let s1a = v.detections().iter().find(|d| d.batch_compound == c && d.file == "s1a").unwrap();
+    let s1a = v.detections().iter().find(|d| d.batch_compound == c && &*d.file == "s1a").unwrap();
     assert_eq!((s1a.detected, s1a.filled, s1a.area), (false, Some(false), None));
     // The matrix: files x compounds, NaN where absent.
     let f_s3b = v.files().iter().position(|f| f.name == "s3b").unwrap();
@@ -259,12 +259,9 @@ fn unit_resolution_and_other_classes_stay_apart() {
     let neg_rows = v.compounds().iter().filter(|c| c.class.polarity == "-").count();
     assert_eq!(neg_rows, 6);
     // The negative file is not in the positive rows' detections.
-    assert!(
-        v.detections()
-            .iter()
-            .all(|d| d.file != "s1a-neg"
-                || v.compounds()[d.batch_compound - 1].class.polarity == "-")
-    );
+    assert!(v.detections().iter().all(
+        |d| &*d.file != "s1a-neg" || v.compounds()[d.batch_compound - 1].class.polarity == "-"
+    ));
 }
 
 #[test]
