@@ -6,6 +6,7 @@
 mod batch;
 mod cmd;
 mod output;
+mod standards;
 
 use std::process::ExitCode;
 

@@ -10,6 +10,8 @@
 //! - [`mzml::Writer`] writes indexed or plain mzML with any supported encoding;
 //! - [`screen::screen_file`] screens one file end to end into a [`screen::FileReport`], and
 //!   [`qc::QcRules`] evaluates a QC gate on it;
+//! - [`mzqc`] turns a report into mzQC 1.0.0 quality metrics, and
+//!   [`mzml::CentroidedWriter`] writes the centroided copy of an acquisition;
 //! - [`Error`] carries an [`ErrorKind`] and a [`Position`] (byte offset, spectrum index and id).
 //!
 //! # Example
@@ -41,6 +43,7 @@ pub mod feature;
 pub mod flag;
 pub mod hash;
 pub mod mzml;
+pub mod mzqc;
 pub mod pipeline;
 pub mod qc;
 pub mod report;

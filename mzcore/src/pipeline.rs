@@ -177,11 +177,29 @@ pub fn run<R, X, T, F>(
     pool: &rayon::ThreadPool,
     settings: &PipelineSettings,
     extra: X,
-    mut sink: F,
+    sink: F,
 ) -> Result<()>
 where
     R: BufRead,
     X: Fn(&ProcessedSpectrum) -> T + Send + Sync + Clone + 'static,
+    T: Send + 'static,
+    F: FnMut(Result<(ProcessedSpectrum, T)>) -> Result<()>,
+{
+    run_with_source(reader, pool, settings, move |_, p| extra(p), sink)
+}
+
+/// [`run`] whose `extra` also sees the spectrum as read (its still-encoded arrays), e.g. to
+/// pass stored arrays through into a derived file.
+pub fn run_with_source<R, X, T, F>(
+    reader: &mut Reader<R>,
+    pool: &rayon::ThreadPool,
+    settings: &PipelineSettings,
+    extra: X,
+    mut sink: F,
+) -> Result<()>
+where
+    R: BufRead,
+    X: Fn(&Spectrum, &ProcessedSpectrum) -> T + Send + Sync + Clone + 'static,
     T: Send + 'static,
     F: FnMut(Result<(ProcessedSpectrum, T)>) -> Result<()>,
 {
@@ -211,7 +229,7 @@ where
                         (tx.clone(), shared.clone(), extra.clone(), next_seq);
                     pool.spawn(move || {
                         let r = process_spectrum(&s, &settings).map(|p| {
-                            let t = extra(&p);
+                            let t = extra(&s, &p);
                             (p, t)
                         });
                         // The receiver outlives every worker unless the run was abandoned.
@@ -242,6 +260,9 @@ where
         spare.push(s);
     }
 }
+
+/// The worker pool type ([`rayon::ThreadPool`]), for callers that do not depend on rayon.
+pub use rayon::ThreadPool;
 
 /// A rayon pool with `threads` workers (0: one per available core).
 pub fn thread_pool(threads: usize) -> Result<rayon::ThreadPool> {

@@ -92,6 +92,31 @@ pub struct ScreenConfig {
     pub centroid: CentroidParams,
     /// Halogen and nitrogen-rule flagging, and feature grouping.
     pub flag: FlagSettings,
+    /// Which files in open standard formats are written besides the TSV reports.
+    pub output: OutputSettings,
+}
+
+/// The `[output]` section: files in open standard formats besides the TSV reports.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct OutputSettings {
+    /// Write mzQC 1.0.0 quality metrics (`run.mzQC` of `mzsift run`, `check.mzQC` of
+    /// `mzsift check`).
+    pub mzqc: bool,
+    /// Write each acquisition's centroided copy, `<name>/centroided.mzML`.
+    pub centroided_mzml: bool,
+    /// Array encodings of the centroided copy.
+    pub centroided_encoding: crate::mzml::CentroidedEncoding,
+}
+
+impl Default for OutputSettings {
+    fn default() -> Self {
+        OutputSettings {
+            mzqc: true,
+            centroided_mzml: false,
+            centroided_encoding: crate::mzml::CentroidedEncoding::Zlib,
+        }
+    }
 }
 
 impl ScreenConfig {
@@ -420,6 +445,8 @@ pub struct FileReport {
     pub features: Vec<Feature>,
     /// One extracted-ion trace per [`TraceTarget`] asked for (empty for [`screen_file`]).
     pub traces: Vec<Vec<TracePoint>>,
+    /// Smallest and largest decoded m/z over the readable spectra.
+    pub mz_range: Option<(f64, f64)>,
 }
 
 /// An extracted-ion trace to record while screening: for every readable MS1 spectrum whose
@@ -599,7 +626,36 @@ pub fn screen_reader_traced<R: BufRead>(
     pool: &rayon::ThreadPool,
     targets: &[TraceTarget],
 ) -> Result<FileReport> {
+    screen_reader_with(input, config, pool, targets, None)
+}
+
+/// [`screen_file_traced`] that also writes every readable spectrum into `centroided` (picked
+/// peaks for profile spectra, stored arrays for centroided ones), from the workers' results in
+/// file order, in the same pass. The caller then calls [`crate::mzml::CentroidedWriter::finish`]
+/// (with the report's SHA-256 for the source file). A failure to write it is an `Err`.
+pub fn screen_file_centroided(
+    path: &Path,
+    config: &ScreenConfig,
+    pool: &rayon::ThreadPool,
+    targets: &[TraceTarget],
+    centroided: &mut crate::mzml::CentroidedWriter,
+) -> Result<FileReport> {
+    let file = File::open(path)?;
+    let hashing = Sha256Reader::new(BufReader::with_capacity(256 * 1024, file));
+    screen_reader_with(hashing, config, pool, targets, Some(centroided))
+}
+
+/// [`screen_reader_traced`] with an optional centroided copy (see [`screen_file_centroided`]).
+pub fn screen_reader_with<R: BufRead>(
+    input: Sha256Reader<R>,
+    config: &ScreenConfig,
+    pool: &rayon::ThreadPool,
+    targets: &[TraceTarget],
+    mut centroided: Option<&mut crate::mzml::CentroidedWriter>,
+) -> Result<FileReport> {
     config.validate()?;
+    let centroided_encoding = centroided.as_ref().map(|w| w.encoding());
+    let mut mz_range: Option<(f64, f64)> = None;
     let mut summary = FileSummary {
         status: FileStatus::Ok,
         error: String::new(),
@@ -628,7 +684,9 @@ pub fn screen_reader_traced<R: BufRead>(
     let mut reader = Reader::with_options(input, config.reader.options())?;
     let flag_settings = config.flag.clone();
     let shared_targets: std::sync::Arc<[TraceTarget]> = targets.into();
-    let extra = move |p: &ProcessedSpectrum| {
+    let extra = move |source: &crate::spectrum::Spectrum, p: &ProcessedSpectrum| {
+        let copy =
+            centroided_encoding.map(|e| crate::mzml::CentroidedArrays::prepare(source, p, e));
         let flags = flag::flag_spectrum(&p.meta, &p.centroids, p.resolution, &flag_settings);
         let traced: Vec<Option<f64>> = shared_targets
             .iter()
@@ -637,11 +695,17 @@ pub fn screen_reader_traced<R: BufRead>(
                     .then(|| t.intensity_in(&p.centroids))
             })
             .collect();
-        (flags, traced)
+        (flags, traced, copy)
     };
-    pipeline::run(&mut reader, pool, &config.pipeline_settings(), extra, |result| {
+    pipeline::run_with_source(&mut reader, pool, &config.pipeline_settings(), extra, |result| {
         match result {
-            Ok((p, (flags, traced))) => {
+            Ok((p, (flags, traced, copy))) => {
+                if let (Some(w), Some(copy)) = (centroided.as_deref_mut(), copy) {
+                    w.push(&p.meta, &copy)?;
+                }
+                if let (Some(lo), Some(hi)) = (p.stats.mz_min, p.stats.mz_max) {
+                    mz_range = Some(mz_range.map_or((lo, hi), |(a, b)| (a.min(lo), b.max(hi))));
+                }
                 for (trace, intensity) in traces.iter_mut().zip(traced) {
                     if let Some(intensity) = intensity {
                         trace.push(TracePoint {
@@ -766,7 +830,7 @@ pub fn screen_reader_traced<R: BufRead>(
             .map(|u| format!("{} unreadable spectra; first: {}", summary.unreadable.len(), u.error))
     });
     summary.error = crate::report::escape_text(&first.unwrap_or_default());
-    Ok(FileReport { summary, spectra, ions, features, traces })
+    Ok(FileReport { summary, spectra, ions, features, traces, mz_range })
 }
 
 /// Most `unreadable` rows added for spectra that a file whose reading stopped early promises in

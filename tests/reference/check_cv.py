@@ -1,27 +1,35 @@
 #!/usr/bin/env python3
 """Checks every PSI-MS accession that mzsift reads or writes against the PSI-MS CV.
 
-Source of truth: shared/standards/psi-ms-subset.obo (HUPO-PSI psi-ms.obo, data-version
-4.1.257, CC BY 4.0). Two checks:
+Source of truth: shared/standards/psi-ms-subset.obo and psi-ms-qc-subset.obo (HUPO-PSI
+psi-ms.obo, data-version 4.1.257, CC BY 4.0; give both, comma-separated). Two checks:
 1. every ("MS:nnnnnnn", "name") pair written in mzcore's source exists with that exact name;
 2. every cvParam in the given mzML files (fixtures, demo data) names an existing term with
    the ontology's name.
-Exit status 1 on any mismatch. Usage: check_cv.py OBO SRC_DIR [MZML ...]
+Exit status 1 on any mismatch. Usage: check_cv.py OBO[,OBO...] SRC_DIR [MZML ...]
 """
 import re
 import sys
 from pathlib import Path
 
 
-def load_obo(path):
-    terms, current = {}, None
-    for line in Path(path).read_text(encoding="utf-8").splitlines():
-        if line.startswith("[Term]"):
-            current = None
-        elif line.startswith("id: "):
-            current = line[4:].strip()
-        elif line.startswith("name: ") and current:
-            terms[current] = line[6:].strip()
+def load_obo(paths):
+    """Terms of one or more OBO files (comma-separated paths); unit terms that only appear as
+    the target of a `has_units` relationship get the name the relationship gives them."""
+    terms, units, current = {}, {}, None
+    for path in paths.split(","):
+        for line in Path(path).read_text(encoding="utf-8").splitlines():
+            if line.startswith("[Term]"):
+                current = None
+            elif line.startswith("id: "):
+                current = line[4:].strip()
+            elif line.startswith("name: ") and current:
+                terms[current] = line[6:].strip()
+            elif line.startswith("relationship: has_units MS:"):
+                acc, _, name = line[len("relationship: has_units "):].partition("!")
+                units[acc.strip()] = name.strip()
+    for acc, name in units.items():
+        terms.setdefault(acc, name)
     return terms
 
 

@@ -2,13 +2,14 @@
 //!
 //! Reads the rules (`mzcore::qc::QcRules`), screens every input once (the pipeline of `run`,
 //! plus the extracted-ion traces the required compounds need), evaluates the rules, and writes
-//! `check.tsv` and `check.junit.xml` (or `check.tsv` on stdout without `-o`). One summary line
+//! `check.tsv`, `check.junit.xml` and `check.mzQC` (or `check.tsv` on stdout without `-o`). One summary line
 //! goes to stderr. Exit code 0: every rule passed or warned; 1: some rule failed; 2: usage or
 //! rules error.
 
 use std::path::PathBuf;
 
 use anyhow::Context;
+use mzcore::mzqc::{self, MzQc, RunInput};
 use mzcore::qc::{self, QC_COLUMNS, QcRules, QcStatus};
 use mzcore::report;
 use mzcore::screen;
@@ -64,11 +65,19 @@ pub fn run(args: &CheckArgs, stdout: &mut dyn std::io::Write) -> anyhow::Result<
     }
     let pool = mzcore::pipeline::thread_pool(config.threads)?;
     let mut rows = Vec::new();
+    let mut runs = Vec::new();
     for input in &inputs {
         let file = input.path.display().to_string();
         let targets = rules.trace_targets(&file);
         let mine = match screen::screen_file_traced(&input.path, &config, &pool, &targets) {
-            Ok(r) => rules.evaluate(&file, &r),
+            Ok(r) => {
+                if config.output.mzqc {
+                    let now = std::time::SystemTime::now();
+                    let run = RunInput::new(&input.name, &input.path, now);
+                    runs.push(mzqc::run_quality(&run, &r));
+                }
+                rules.evaluate(&file, &r)
+            }
             Err(e) => {
                 output::report(&input.path, &e);
                 rules.unreadable_file(&file, &e.to_string())
@@ -100,11 +109,23 @@ pub fn run(args: &CheckArgs, stdout: &mut dyn std::io::Write) -> anyhow::Result<
         None => report::write_tsv(&mut *stdout, QC_COLUMNS, &rows)?,
     }
     let (pass, warn, fail) = qc::tally(&rows);
-    eprintln!(
+    let verdict = format!(
         "mzsift check: {} files, {} rule results: {pass} pass, {warn} warn, {fail} fail: {}",
         inputs.len(),
         rows.len(),
         if fail == 0 { "PASSED" } else { "FAILED" }
     );
+    if let (Some(out), true) = (&args.out, config.output.mzqc) {
+        // The rule verdicts have no PSI-MS QC term: the summary goes into the free-text
+        // description, each rule's verdict stays in check.tsv / check.junit.xml.
+        let description = format!(
+            "{verdict}. Per-rule verdicts are in check.tsv and check.junit.xml (no PSI-MS QC term exists for them)."
+        );
+        let path = out.join("check.mzQC");
+        MzQc::new(runs, Some(description), std::time::SystemTime::now())
+            .write(&path)
+            .with_context(|| path.display().to_string())?;
+    }
+    eprintln!("{verdict}");
     Ok(if fail == 0 { output::OK } else { output::SOME_FAILED })
 }

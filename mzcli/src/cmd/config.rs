@@ -75,6 +75,18 @@ const DOCS: &[(&str, &str)] = &[
     ),
     ("flag.feature_min_scans", "least consecutive MS1 scans for a feature"),
     ("flag.feature_max_gap", "MS1 scans that may be missing inside a feature"),
+    (
+        "output.mzqc",
+        "write mzQC 1.0.0 metrics: run.mzQC (mzsift run), check.mzQC (mzsift check -o)",
+    ),
+    (
+        "output.centroided_mzml",
+        "write <name>/centroided.mzML, the picked peaks with the metadata (--write-centroided)",
+    ),
+    (
+        "output.centroided_encoding",
+        "\"zlib\" (m/z 64-bit, intensity 32-bit) or \"numpress\" (MS-Numpress linear / short logged float, then zlib)",
+    ),
 ];
 
 /// The TOML text with a `# ...` comment line above every documented key.

@@ -49,9 +49,18 @@ pub struct RunArgs {
     /// Also print every unreadable spectrum.
     #[arg(short, long)]
     pub verbose: bool,
+    /// Also write each acquisition's centroided copy, OUTDIR/<name>/centroided.mzML
+    /// (as `[output] centroided_mzml = true`).
+    #[arg(long)]
+    pub write_centroided: bool,
 }
 
-fn write_reports(dir: &Path, report: &FileReport, completion: &Completion) -> mzcore::Result<()> {
+fn write_reports(
+    dir: &Path,
+    report: &FileReport,
+    completion: &Completion,
+    extras: &crate::standards::FolderExtras,
+) -> mzcore::Result<()> {
     if let Some(parent) = dir.parent() {
         std::fs::create_dir_all(parent)?;
     }
@@ -62,12 +71,18 @@ fn write_reports(dir: &Path, report: &FileReport, completion: &Completion) -> mz
         put("spectra.tsv", &|w| report::write_tsv(w, SPECTRUM_COLUMNS, &report.spectra))?;
         put("ions.tsv", &|w| report::write_tsv(w, ION_COLUMNS, &report.ions))?;
         put("features.tsv", &|w| report::write_tsv(w, FEATURE_COLUMNS, &report.features))?;
+        extras.place(tmp)?;
         report::write_json_atomic(&tmp.join(COMPLETION_FILE), completion)
     })
 }
 
 /// The completion record of an earlier run, if it matches the input and configuration.
-fn reusable(dir: &Path, input: &Path, config_text: &str) -> Option<FileSummary> {
+fn reusable(
+    dir: &Path,
+    input: &Path,
+    config: &ScreenConfig,
+    config_text: &str,
+) -> Option<FileSummary> {
     let text = std::fs::read_to_string(dir.join(COMPLETION_FILE)).ok()?;
     let c: Completion = serde_json::from_str(&text).ok()?;
     let (_, mtime_ns) = mtime(input)?;
@@ -76,7 +91,10 @@ fn reusable(dir: &Path, input: &Path, config_text: &str) -> Option<FileSummary> 
         && c.input_bytes == bytes
         && c.input_mtime_ns == mtime_ns
         && c.config == config_text;
-    let files_there = REPORT_FILES.iter().all(|f| dir.join(f).is_file());
+    let files_there = REPORT_FILES
+        .iter()
+        .chain(&crate::standards::folder_files(config))
+        .all(|f| dir.join(f).is_file());
     (same && files_there).then_some(c.summary)
 }
 
@@ -138,13 +156,14 @@ pub fn load_config(path: Option<&Path>, jobs: Option<usize>) -> anyhow::Result<S
 
 /// Runs `mzsift run`; returns the exit code.
 pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
-    let config = match load_config(args.config.as_deref(), args.jobs) {
+    let mut config = match load_config(args.config.as_deref(), args.jobs) {
         Ok(c) => c,
         Err(e) => {
             eprintln!("mzsift: {e:#}");
             return Ok(output::USAGE);
         }
     };
+    config.output.centroided_mzml |= args.write_centroided;
     let config_text = config.to_toml();
     let inputs = discover(&args.inputs)?;
     if inputs.is_empty() && !args.quiet {
@@ -153,6 +172,7 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
     let out = &args.out;
     std::fs::create_dir_all(out).with_context(|| out.display().to_string())?;
     crate::batch::remove_stale_batch_files(out)?;
+    crate::standards::remove_stale(out)?;
     let pool = mzcore::pipeline::thread_pool(config.threads)?;
     let started_at = SystemTime::now();
     let started = Instant::now();
@@ -181,7 +201,7 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
                 mtime_unix: mtimes.map(|m| m.0),
             }
         } else if let Some(summary) =
-            args.resume.then(|| reusable(&dir, &input.path, &config_text)).flatten()
+            args.resume.then(|| reusable(&dir, &input.path, &config, &config_text)).flatten()
         {
             Outcome {
                 status: summary.status,
@@ -193,8 +213,8 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
                 mtime_unix: mtimes.map(|m| m.0),
             }
         } else {
-            match screen::screen_file(&input.path, &config, &pool) {
-                Ok(report) => {
+            match crate::standards::screen_for_folder(&input.path, &name, &dir, &config, &pool) {
+                Ok((report, extras)) => {
                     if args.verbose {
                         for u in &report.summary.unreadable {
                             output::report(&input.path, &u.error);
@@ -207,9 +227,10 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
                         config: config_text.clone(),
                         summary: report.summary.clone(),
                     };
-                    let (status, error) = match write_reports(&dir, &report, &completion) {
+                    let (status, error) = match write_reports(&dir, &report, &completion, &extras) {
                         Ok(()) => (report.summary.status, report.summary.error.clone()),
                         Err(e) => {
+                            extras.discard();
                             (FileStatus::Failed, escape_text(&format!("writing reports: {e}")))
                         }
                     };
@@ -260,6 +281,9 @@ pub fn run(args: &RunArgs) -> anyhow::Result<u8> {
         merged_from: Vec::new(),
     };
     crate::batch::write_run_record(out, &record)?;
+    if config.output.mzqc {
+        crate::standards::write_run_mzqc(out, &outcomes)?;
+    }
     let all_ok = outcomes.iter().all(|o| o.status == FileStatus::Ok);
     Ok(if all_ok { output::OK } else { output::SOME_FAILED })
 }

@@ -79,13 +79,27 @@ pub struct Writer<W: Write> {
     chromatogram_offsets: Vec<(String, u64)>,
     tic: Vec<(f64, f64)>,
     text: String,
+    extras: Option<HeaderExtras>,
 }
 
-fn escape(s: &str) -> std::borrow::Cow<'_, str> {
+/// Header content that replaces the synthetic writer's defaults (used for derived files such
+/// as the centroided copy of an acquisition): source file, software and data processing.
+#[derive(Debug, Clone, Default)]
+pub(crate) struct HeaderExtras {
+    /// `<sourceFile>` lines (already rendered, indented by the caller's indent + 6).
+    pub source_files: Vec<String>,
+    /// Params of the `mzsift` software element (rendered lines, indented by indent + 6).
+    pub software_params: Vec<String>,
+    /// `(id, params)` of each `dataProcessing` (params: rendered lines, indent + 8); the first
+    /// is the spectrum list's default.
+    pub processing: Vec<(String, Vec<String>)>,
+}
+
+pub(crate) fn escape(s: &str) -> std::borrow::Cow<'_, str> {
     quick_xml::escape::escape(s)
 }
 
-fn cv_param(out: &mut String, indent: &str, term: Term, value: Option<&str>) {
+pub(crate) fn cv_param(out: &mut String, indent: &str, term: Term, value: Option<&str>) {
     out.push_str(indent);
     out.push_str("<cvParam cvRef=\"MS\" accession=\"");
     out.push_str(term.0);
@@ -125,6 +139,15 @@ impl<W: Write> Writer<W> {
 
     /// Starts a document: writes everything up to the first spectrum.
     pub fn new(out: W, options: WriterOptions) -> Result<Self> {
+        Self::with_extras(out, options, None)
+    }
+
+    /// [`Writer::new`] with the header content of `extras` instead of the defaults.
+    pub(crate) fn with_extras(
+        out: W,
+        options: WriterOptions,
+        extras: Option<HeaderExtras>,
+    ) -> Result<Self> {
         let mut w = Writer {
             sink: Sink { out, written: 0, hasher: Sha1::new() },
             options,
@@ -132,6 +155,7 @@ impl<W: Write> Writer<W> {
             chromatogram_offsets: Vec::new(),
             tic: Vec::new(),
             text: String::with_capacity(1 << 16),
+            extras,
         };
         w.header()?;
         Ok(w)
@@ -166,7 +190,15 @@ impl<W: Write> Writer<W> {
         h.push_str(&format!("{i1}<fileDescription>\n{i2}<fileContent>\n"));
         cv_param(&mut h, &i3, cv::MS1_SPECTRUM, None);
         cv_param(&mut h, &i3, cv::MSN_SPECTRUM, None);
-        h.push_str(&format!("{i2}</fileContent>\n{i1}</fileDescription>\n"));
+        h.push_str(&format!("{i2}</fileContent>\n"));
+        if let Some(x) = self.extras.as_ref().filter(|x| !x.source_files.is_empty()) {
+            h.push_str(&format!("{i2}<sourceFileList count=\"{}\">\n", x.source_files.len()));
+            for f in &x.source_files {
+                h.push_str(f);
+            }
+            h.push_str(&format!("{i2}</sourceFileList>\n"));
+        }
+        h.push_str(&format!("{i1}</fileDescription>\n"));
         if o.param_groups {
             h.push_str(&format!("{i1}<referenceableParamGroupList count=\"2\">\n"));
             for (id, enc, kind) in [
@@ -182,28 +214,55 @@ impl<W: Write> Writer<W> {
             h.push_str(&format!("{i1}</referenceableParamGroupList>\n"));
         }
         let version = env!("CARGO_PKG_VERSION");
-        h.push_str(&format!("{i1}<softwareList count=\"1\">\n{i2}<software id=\"mzsift\" version=\"{version}\">\n{i3}<userParam name=\"mzsift synthetic acquisition writer\"/>\n{i2}</software>\n{i1}</softwareList>\n"));
+        match &self.extras {
+            Some(x) => {
+                h.push_str(&format!("{i1}<softwareList count=\"1\">\n{i2}<software id=\"mzsift\" version=\"{version}\">\n"));
+                for p in &x.software_params {
+                    h.push_str(p);
+                }
+                h.push_str(&format!("{i2}</software>\n{i1}</softwareList>\n"));
+            }
+            None => h.push_str(&format!("{i1}<softwareList count=\"1\">\n{i2}<software id=\"mzsift\" version=\"{version}\">\n{i3}<userParam name=\"mzsift synthetic acquisition writer\"/>\n{i2}</software>\n{i1}</softwareList>\n")),
+        }
         h.push_str(&format!("{i1}<instrumentConfigurationList count=\"1\">\n{i2}<instrumentConfiguration id=\"IC1\">\n{i3}<componentList count=\"3\">\n{i4}<source order=\"1\">\n"));
         match ionization_term(o.ionization) {
             Some(t) => cv_param(&mut h, &format!("{i4}  "), t, None),
             None => h.push_str(&format!("{i4}  <userParam name=\"ionization not stated\"/>\n")),
         }
         h.push_str(&format!("{i4}</source>\n{i4}<analyzer order=\"2\">\n{i4}  <userParam name=\"mass analyzer\" value=\"synthetic\"/>\n{i4}</analyzer>\n{i4}<detector order=\"3\">\n{i4}  <userParam name=\"detector\" value=\"synthetic\"/>\n{i4}</detector>\n{i3}</componentList>\n{i2}</instrumentConfiguration>\n{i1}</instrumentConfigurationList>\n"));
-        h.push_str(&format!("{i1}<dataProcessingList count=\"1\">\n{i2}<dataProcessing id=\"mzsift_processing\">\n{i3}<processingMethod order=\"0\" softwareRef=\"mzsift\">\n"));
-        cv_param(&mut h, &i4, cv::CONVERSION_TO_MZML, None);
+        let default_processing = match &self.extras {
+            Some(x) if !x.processing.is_empty() => {
+                h.push_str(&format!("{i1}<dataProcessingList count=\"{}\">\n", x.processing.len()));
+                for (id, params) in &x.processing {
+                    h.push_str(&format!("{i2}<dataProcessing id=\"{}\">\n{i3}<processingMethod order=\"0\" softwareRef=\"mzsift\">\n", escape(id)));
+                    for p in params {
+                        h.push_str(p);
+                    }
+                    h.push_str(&format!("{i3}</processingMethod>\n{i2}</dataProcessing>\n"));
+                }
+                h.push_str(&format!("{i1}</dataProcessingList>\n"));
+                x.processing[0].0.clone()
+            }
+            _ => {
+                h.push_str(&format!("{i1}<dataProcessingList count=\"1\">\n{i2}<dataProcessing id=\"mzsift_processing\">\n{i3}<processingMethod order=\"0\" softwareRef=\"mzsift\">\n"));
+                cv_param(&mut h, &i4, cv::CONVERSION_TO_MZML, None);
+                h.push_str(&format!(
+                    "{i3}</processingMethod>\n{i2}</dataProcessing>\n{i1}</dataProcessingList>\n"
+                ));
+                "mzsift_processing".to_owned()
+            }
+        };
         h.push_str(&format!(
-            "{i3}</processingMethod>\n{i2}</dataProcessing>\n{i1}</dataProcessingList>\n"
-        ));
-        h.push_str(&format!(
-            "{i1}<run id=\"{}\" defaultInstrumentConfigurationRef=\"IC1\">\n{i2}<spectrumList count=\"{}\" defaultDataProcessingRef=\"mzsift_processing\">\n",
+            "{i1}<run id=\"{}\" defaultInstrumentConfigurationRef=\"IC1\">\n{i2}<spectrumList count=\"{}\" defaultDataProcessingRef=\"{}\">\n",
             escape(&o.run_id),
-            o.spectrum_count
+            o.spectrum_count,
+            escape(&default_processing)
         ));
         self.sink.put(&h)
     }
 
     fn indent(&self) -> &'static str {
-        if self.options.indexed { "        " } else { "      " }
+        if self.options.indexed { SPECTRUM_INDENT } else { "      " }
     }
 
     /// Writes one spectrum. `meta.index` is ignored: spectra are numbered in write order.
@@ -220,119 +279,59 @@ impl<W: Write> Writer<W> {
         meta: &SpectrumMeta,
         encoded: &EncodedPeaks,
     ) -> Result<()> {
-        let index = self.offsets.len();
-        let ind = self.indent();
-        let i1 = format!("{ind}  ");
-        let i2 = format!("{ind}    ");
-        let i3 = format!("{ind}      ");
+        let arrays = [
+            ArrayText {
+                kind: cv::MZ_ARRAY,
+                encoding: self.options.mz_encoding,
+                base64: encoded.mz.as_bytes(),
+                group: self.options.param_groups.then_some("mz_params"),
+            },
+            ArrayText {
+                kind: cv::INTENSITY_ARRAY,
+                encoding: self.options.intensity_encoding,
+                base64: encoded.intensity.as_bytes(),
+                group: self.options.param_groups.then_some("intensity_params"),
+            },
+        ];
+        let spectrum = SpectrumText {
+            index: self.offsets.len(),
+            meta,
+            points: encoded.points,
+            tic: meta.stored_tic.unwrap_or(encoded.tic),
+            base_peak: match (meta.stored_base_peak_mz, meta.stored_base_peak_intensity) {
+                (Some(m), Some(i)) => Some((m, i)),
+                _ => encoded.base_peak,
+            },
+            arrays: &arrays,
+            data_processing_ref: None,
+            activation: Some(cv::CID),
+        };
         let mut t = std::mem::take(&mut self.text);
         t.clear();
-        t.push_str(&format!(
-            "{ind}<spectrum index=\"{index}\" id=\"{}\" defaultArrayLength=\"{}\">\n",
-            escape(&meta.id),
-            encoded.points
-        ));
-        cv_param(&mut t, &i1, cv::MS_LEVEL, Some(&meta.ms_level.to_string()));
-        cv_param(
-            &mut t,
-            &i1,
-            if meta.ms_level <= 1 { cv::MS1_SPECTRUM } else { cv::MSN_SPECTRUM },
-            None,
-        );
-        match meta.representation {
-            Representation::Profile => cv_param(&mut t, &i1, cv::PROFILE_SPECTRUM, None),
-            Representation::Centroid => cv_param(&mut t, &i1, cv::CENTROID_SPECTRUM, None),
-            Representation::Unknown => {}
-        }
-        match meta.polarity {
-            Polarity::Positive => cv_param(&mut t, &i1, cv::POSITIVE_SCAN, None),
-            Polarity::Negative => cv_param(&mut t, &i1, cv::NEGATIVE_SCAN, None),
-            Polarity::Unknown => {}
-        }
-        let tic = meta.stored_tic.unwrap_or(encoded.tic);
-        let (bp_mz, bp_int) = match (meta.stored_base_peak_mz, meta.stored_base_peak_intensity) {
-            (Some(m), Some(i)) => (Some(m), Some(i)),
-            _ => (encoded.base_peak.map(|b| b.0), encoded.base_peak.map(|b| b.1)),
-        };
-        cv_param(&mut t, &i1, cv::TOTAL_ION_CURRENT, Some(&fmt_f64(tic)));
-        if let (Some(m), Some(i)) = (bp_mz, bp_int) {
-            cv_param(&mut t, &i1, cv::BASE_PEAK_MZ, Some(&fmt_f64(m)));
-            cv_param(&mut t, &i1, cv::BASE_PEAK_INTENSITY, Some(&fmt_f64(i)));
-        }
-        t.push_str(&format!("{i1}<scanList count=\"1\">\n{i2}<scan>\n"));
-        if let Some(rt) = meta.rt_min {
-            if self.options.rt_in_seconds {
-                cv_param_unit(&mut t, &i3, cv::SCAN_START_TIME, &fmt_f64(rt * 60.0), cv::UO_SECOND);
-            } else {
-                cv_param_unit(&mut t, &i3, cv::SCAN_START_TIME, &fmt_f64(rt), cv::UO_MINUTE);
-            }
-        }
-        t.push_str(&format!("{i2}</scan>\n{i1}</scanList>\n"));
-        if !meta.precursors.is_empty() {
-            t.push_str(&format!("{i1}<precursorList count=\"{}\">\n", meta.precursors.len()));
-            for p in &meta.precursors {
-                t.push_str(&format!("{i2}<precursor>\n"));
-                if p.isolation_target.is_some() {
-                    t.push_str(&format!("{i3}<isolationWindow>\n"));
-                    let i4 = format!("{i3}  ");
-                    for (term, v) in [
-                        (cv::ISOLATION_TARGET, p.isolation_target),
-                        (cv::ISOLATION_LOWER, p.isolation_lower_offset),
-                        (cv::ISOLATION_UPPER, p.isolation_upper_offset),
-                    ] {
-                        if let Some(v) = v {
-                            cv_param(&mut t, &i4, term, Some(&fmt_f64(v)));
-                        }
-                    }
-                    t.push_str(&format!("{i3}</isolationWindow>\n"));
-                }
-                t.push_str(&format!("{i3}<selectedIonList count=\"1\">\n{i3}  <selectedIon>\n"));
-                let i5 = format!("{i3}    ");
-                if let Some(mz) = p.selected_mz {
-                    cv_param(&mut t, &i5, cv::SELECTED_ION_MZ, Some(&fmt_f64(mz)));
-                }
-                if let Some(z) = p.charge {
-                    cv_param(&mut t, &i5, cv::CHARGE_STATE, Some(&z.to_string()));
-                }
-                t.push_str(&format!(
-                    "{i3}  </selectedIon>\n{i3}</selectedIonList>\n{i3}<activation>\n"
-                ));
-                cv_param(&mut t, &format!("{i3}  "), cv::CID, None);
-                t.push_str(&format!("{i3}</activation>\n{i2}</precursor>\n"));
-            }
-            t.push_str(&format!("{i1}</precursorList>\n"));
-        }
-        t.push_str(&format!("{i1}<binaryDataArrayList count=\"2\">\n"));
-        let groups = self.options.param_groups;
-        for (text, enc, kind, group) in [
-            (&encoded.mz, self.options.mz_encoding, cv::MZ_ARRAY, "mz_params"),
-            (
-                &encoded.intensity,
-                self.options.intensity_encoding,
-                cv::INTENSITY_ARRAY,
-                "intensity_params",
-            ),
-        ] {
-            t.push_str(&format!("{i2}<binaryDataArray encodedLength=\"{}\">\n", text.len()));
-            if groups {
-                t.push_str(&format!("{i3}<referenceableParamGroupRef ref=\"{group}\"/>\n"));
-            } else {
-                cv_param(&mut t, &i3, enc.numeric.cv(), None);
-                cv_param(&mut t, &i3, enc.compression.cv(), None);
-                cv_param(&mut t, &i3, kind, None);
-            }
-            t.push_str(&format!("{i3}<binary>{text}</binary>\n{i2}</binaryDataArray>\n"));
-        }
-        t.push_str(&format!("{i1}</binaryDataArrayList>\n{ind}</spectrum>\n"));
-        self.offsets.push((meta.id.clone(), self.sink.written + ind.len() as u64));
-        if meta.ms_level <= 1 {
-            if let Some(rt) = meta.rt_min {
+        render_spectrum(&mut t, self.indent(), &spectrum, self.options.rt_in_seconds);
+        let r = self.write_rendered(&t, &meta.id, meta.ms_level, meta.rt_min, spectrum.tic);
+        self.text = t;
+        r
+    }
+
+    /// Appends one spectrum rendered by [`render_spectrum`] with [`SPECTRUM_INDENT`] (indexed
+    /// documents) and the next index, recording its offset and its point of the TIC.
+    pub(crate) fn write_rendered(
+        &mut self,
+        text: &str,
+        id: &str,
+        ms_level: u8,
+        rt_min: Option<f64>,
+        tic: f64,
+    ) -> Result<()> {
+        let ind = self.indent();
+        self.offsets.push((id.to_owned(), self.sink.written + ind.len() as u64));
+        if ms_level <= 1 {
+            if let Some(rt) = rt_min {
                 self.tic.push((rt, tic));
             }
         }
-        let r = self.sink.put(&t);
-        self.text = t;
-        r
+        self.sink.put(text)
     }
 
     /// Writes the chromatogram, index and checksum, and returns the underlying writer.
@@ -405,6 +404,139 @@ impl<W: Write> Writer<W> {
         self.sink.out.flush()?;
         Ok(self.sink.out)
     }
+}
+
+/// Indent of a `<spectrum>` in an indexed document.
+pub(crate) const SPECTRUM_INDENT: &str = "        ";
+
+/// One binary array ready to be written: its kind, encoding and base64 text.
+pub(crate) struct ArrayText<'a> {
+    pub kind: Term,
+    pub encoding: BinaryEncoding,
+    pub base64: &'a [u8],
+    /// A `referenceableParamGroup` holding the encoding terms, instead of inline cvParams.
+    pub group: Option<&'static str>,
+}
+
+/// What [`render_spectrum`] writes for one spectrum.
+pub(crate) struct SpectrumText<'a> {
+    pub index: usize,
+    pub meta: &'a SpectrumMeta,
+    pub points: usize,
+    pub tic: f64,
+    pub base_peak: Option<(f64, f64)>,
+    pub arrays: &'a [ArrayText<'a>],
+    /// The spectrum's `dataProcessingRef` (else the list's default applies).
+    pub data_processing_ref: Option<&'a str>,
+    /// The activation term of every precursor (`None`: a userParam saying it is not stated).
+    pub activation: Option<Term>,
+}
+
+/// Renders one `<spectrum>` element (indented by `ind`) into `t`.
+pub(crate) fn render_spectrum(
+    t: &mut String,
+    ind: &str,
+    s: &SpectrumText<'_>,
+    rt_in_seconds: bool,
+) {
+    let meta = s.meta;
+    let i1 = format!("{ind}  ");
+    let i2 = format!("{ind}    ");
+    let i3 = format!("{ind}      ");
+    t.push_str(&format!(
+        "{ind}<spectrum index=\"{}\" id=\"{}\" defaultArrayLength=\"{}\"",
+        s.index,
+        escape(&meta.id),
+        s.points
+    ));
+    if let Some(dp) = s.data_processing_ref {
+        t.push_str(&format!(" dataProcessingRef=\"{}\"", escape(dp)));
+    }
+    t.push_str(">\n");
+    cv_param(t, &i1, cv::MS_LEVEL, Some(&meta.ms_level.to_string()));
+    cv_param(t, &i1, if meta.ms_level <= 1 { cv::MS1_SPECTRUM } else { cv::MSN_SPECTRUM }, None);
+    match meta.representation {
+        Representation::Profile => cv_param(t, &i1, cv::PROFILE_SPECTRUM, None),
+        Representation::Centroid => cv_param(t, &i1, cv::CENTROID_SPECTRUM, None),
+        Representation::Unknown => {}
+    }
+    match meta.polarity {
+        Polarity::Positive => cv_param(t, &i1, cv::POSITIVE_SCAN, None),
+        Polarity::Negative => cv_param(t, &i1, cv::NEGATIVE_SCAN, None),
+        Polarity::Unknown => {}
+    }
+    cv_param(t, &i1, cv::TOTAL_ION_CURRENT, Some(&fmt_f64(s.tic)));
+    if let Some((m, i)) = s.base_peak {
+        cv_param(t, &i1, cv::BASE_PEAK_MZ, Some(&fmt_f64(m)));
+        cv_param(t, &i1, cv::BASE_PEAK_INTENSITY, Some(&fmt_f64(i)));
+    }
+    t.push_str(&format!("{i1}<scanList count=\"1\">\n{i2}<scan>\n"));
+    if let Some(rt) = meta.rt_min {
+        if rt_in_seconds {
+            cv_param_unit(t, &i3, cv::SCAN_START_TIME, &fmt_f64(rt * 60.0), cv::UO_SECOND);
+        } else {
+            cv_param_unit(t, &i3, cv::SCAN_START_TIME, &fmt_f64(rt), cv::UO_MINUTE);
+        }
+    }
+    t.push_str(&format!("{i2}</scan>\n{i1}</scanList>\n"));
+    if !meta.precursors.is_empty() {
+        t.push_str(&format!("{i1}<precursorList count=\"{}\">\n", meta.precursors.len()));
+        for p in &meta.precursors {
+            t.push_str(&format!("{i2}<precursor>\n"));
+            if p.isolation_target.is_some() {
+                t.push_str(&format!("{i3}<isolationWindow>\n"));
+                let i4 = format!("{i3}  ");
+                for (term, v) in [
+                    (cv::ISOLATION_TARGET, p.isolation_target),
+                    (cv::ISOLATION_LOWER, p.isolation_lower_offset),
+                    (cv::ISOLATION_UPPER, p.isolation_upper_offset),
+                ] {
+                    if let Some(v) = v {
+                        cv_param(t, &i4, term, Some(&fmt_f64(v)));
+                    }
+                }
+                t.push_str(&format!("{i3}</isolationWindow>\n"));
+            }
+            t.push_str(&format!("{i3}<selectedIonList count=\"1\">\n{i3}  <selectedIon>\n"));
+            let i5 = format!("{i3}    ");
+            if let Some(mz) = p.selected_mz {
+                cv_param(t, &i5, cv::SELECTED_ION_MZ, Some(&fmt_f64(mz)));
+            }
+            if let Some(z) = p.charge {
+                cv_param(t, &i5, cv::CHARGE_STATE, Some(&z.to_string()));
+            }
+            t.push_str(&format!(
+                "{i3}  </selectedIon>\n{i3}</selectedIonList>\n{i3}<activation>\n"
+            ));
+            match s.activation {
+                Some(term) => cv_param(t, &format!("{i3}  "), term, None),
+                None => t.push_str(&format!(
+                    "{i3}  <userParam name=\"activation not stated (not carried over from the source file)\"/>\n"
+                )),
+            }
+            t.push_str(&format!("{i3}</activation>\n{i2}</precursor>\n"));
+        }
+        t.push_str(&format!("{i1}</precursorList>\n"));
+    }
+    t.push_str(&format!("{i1}<binaryDataArrayList count=\"{}\">\n", s.arrays.len()));
+    for a in s.arrays {
+        t.push_str(&format!("{i2}<binaryDataArray encodedLength=\"{}\">\n", a.base64.len()));
+        match a.group {
+            Some(group) => {
+                t.push_str(&format!("{i3}<referenceableParamGroupRef ref=\"{group}\"/>\n"))
+            }
+            None => {
+                cv_param(t, &i3, a.encoding.numeric.cv(), None);
+                cv_param(t, &i3, a.encoding.compression.cv(), None);
+                cv_param(t, &i3, a.kind, None);
+            }
+        }
+        t.push_str(&format!("{i3}<binary>"));
+        // Base64 text is ASCII.
+        t.push_str(std::str::from_utf8(a.base64).unwrap_or(""));
+        t.push_str(&format!("</binary>\n{i2}</binaryDataArray>\n"));
+    }
+    t.push_str(&format!("{i1}</binaryDataArrayList>\n{ind}</spectrum>\n"));
 }
 
 /// A spectrum's arrays encoded as base64 text, plus what the writer derives from the values
