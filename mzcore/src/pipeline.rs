@@ -158,6 +158,9 @@ pub fn process_spectrum(
             &settings.centroid,
             &mut out.centroids,
         );
+        if out.treated_as == Representation::Centroid {
+            stored_snr_peaks(spectrum, peaks, &settings.centroid, &mut out.centroids)?;
+        }
         out.resolution = match settings.resolution {
             ResolutionSetting::Unit => ResolutionClass::Unit,
             ResolutionSetting::High => ResolutionClass::High,
@@ -165,6 +168,48 @@ pub fn process_spectrum(
         };
         Ok(out)
     })
+}
+
+/// A centroid list that carries its peaks' S/N (MS:1000517 signal to noise array, as the
+/// centroided files of [`crate::mzml::CentroidedWriter`] do) keeps the peaks whose stored S/N
+/// reaches `min_snr`, with that S/N, instead of re-estimating the noise from the list (which,
+/// for a list of picked peaks only, measures S/N against the weakest peaks). Without the
+/// array, or with one of another length, `centroids` stays as thresholded.
+fn stored_snr_peaks(
+    spectrum: &Spectrum,
+    peaks: &Peaks,
+    params: &CentroidParams,
+    centroids: &mut Vec<crate::centroid::Centroid>,
+) -> Result<()> {
+    let Some(array) = spectrum.array(crate::spectrum::ArrayKind::SignalToNoise) else {
+        return Ok(());
+    };
+    let mut snr = Vec::new();
+    array.decode_into(&mut snr).map_err(|e| {
+        e.in_field("signal to noise array").in_spectrum(spectrum.meta.index, &spectrum.meta.id)
+    })?;
+    if snr.len() != peaks.len() {
+        return Ok(());
+    }
+    // MS:1002529 resolution array: m/z over FWHM, giving the peaks their widths back.
+    let mut resolution = Vec::new();
+    if let Some(r) = spectrum.array(crate::spectrum::ArrayKind::Resolution) {
+        r.decode_into(&mut resolution).map_err(|e| {
+            e.in_field("resolution array").in_spectrum(spectrum.meta.index, &spectrum.meta.id)
+        })?;
+    }
+    if resolution.len() != peaks.len() {
+        resolution.clear();
+    }
+    centroids.clear();
+    for (i, ((&mz, &y), &s)) in peaks.mz.iter().zip(&peaks.intensity).zip(&snr).enumerate() {
+        if s >= params.min_snr && y > 0.0 && y.is_finite() && mz.is_finite() {
+            let r = resolution.get(i).copied().unwrap_or(0.0);
+            let fwhm = if r > 0.0 && r.is_finite() { mz / r } else { 0.0 };
+            centroids.push(crate::centroid::Centroid { mz, intensity: y, area: y, snr: s, fwhm });
+        }
+    }
+    Ok(())
 }
 
 /// Streams every spectrum of `reader` through [`process_spectrum`] on `pool` and calls `sink`

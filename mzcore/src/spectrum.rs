@@ -120,6 +120,10 @@ pub enum ArrayKind {
     Intensity,
     /// MS:1000595 time array.
     Time,
+    /// MS:1000517 signal to noise array (per peak of a centroid list).
+    SignalToNoise,
+    /// MS:1002529 resolution array (m/z over FWHM, per peak of a centroid list).
+    Resolution,
 }
 
 /// One binary data array as stored in the file: base64 text not yet decoded.

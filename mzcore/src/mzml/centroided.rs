@@ -3,6 +3,11 @@
 //! spectra replaced by the peaks the pipeline picked, spectra that were already centroided
 //! passed through with their arrays as stored (bit for bit).
 //!
+//! Picked spectra also carry each peak's S/N (MS:1000517 signal to noise array) and resolving
+//! power m/z over FWHM (MS:1002529 resolution array), 32-bit float, zlib: screening the centroided file again then keeps the picked peaks with their S/N
+//! instead of re-estimating the noise from a list that holds peaks only (see
+//! [`crate::pipeline::process_spectrum`]), so that it finds the same halogen features.
+//!
 //! Data flow: on a worker thread, [`CentroidedArrays::prepare`] encodes a processed spectrum's
 //! picked peaks (m/z 64-bit, intensity 32-bit, zlib; or MS-Numpress) or copies the stored
 //! arrays of a centroided one; on the collecting thread, [`CentroidedWriter::push`] renders the
@@ -85,6 +90,8 @@ impl CentroidedEncoding {
 pub struct CentroidedArrays {
     mz: (BinaryEncoding, Vec<u8>),
     intensity: (BinaryEncoding, Vec<u8>),
+    snr: Option<(BinaryEncoding, Vec<u8>)>,
+    resolution: Option<(BinaryEncoding, Vec<u8>)>,
     points: usize,
     picked: bool,
     tic: f64,
@@ -103,9 +110,14 @@ impl CentroidedArrays {
         let stored = (source.array(ArrayKind::Mz), source.array(ArrayKind::Intensity));
         if done.treated_as != Representation::Profile {
             if let (Some(m), Some(i)) = stored {
+                let snr = source.array(ArrayKind::SignalToNoise);
                 return CentroidedArrays {
                     mz: (m.encoding, m.base64.clone()),
                     intensity: (i.encoding, i.base64.clone()),
+                    snr: snr.map(|a| (a.encoding, a.base64.clone())),
+                    resolution: source
+                        .array(ArrayKind::Resolution)
+                        .map(|a| (a.encoding, a.base64.clone())),
                     points: done.stats.points,
                     picked: false,
                     tic: done.stats.intensity_sum,
@@ -116,10 +128,16 @@ impl CentroidedArrays {
         let c = &done.centroids;
         let mz: Vec<f64> = c.iter().map(|c| c.mz).collect();
         let intensity: Vec<f64> = c.iter().map(|c| c.intensity).collect();
+        let snr: Vec<f64> = c.iter().map(|c| c.snr).collect();
+        let resolution: Vec<f64> =
+            c.iter().map(|c| if c.fwhm > 0.0 { c.mz / c.fwhm } else { 0.0 }).collect();
+        let snr_enc = BinaryEncoding { numeric: NumericType::F32, compression: Compression::Zlib };
         let best = c.iter().max_by(|a, b| a.intensity.total_cmp(&b.intensity));
         CentroidedArrays {
             mz: (mz_enc, binary::encode(&mz, mz_enc).into_bytes()),
             intensity: (int_enc, binary::encode(&intensity, int_enc).into_bytes()),
+            snr: Some((snr_enc, binary::encode(&snr, snr_enc).into_bytes())),
+            resolution: Some((snr_enc, binary::encode(&resolution, snr_enc).into_bytes())),
             points: c.len(),
             picked: done.treated_as == Representation::Profile,
             tic: intensity.iter().sum(),
@@ -269,7 +287,7 @@ impl CentroidedWriter {
         if arrays.picked {
             meta_out.to_mut().representation = Representation::Centroid;
         }
-        let array_texts = [
+        let mut array_texts = vec![
             ArrayText {
                 kind: cv::MZ_ARRAY,
                 encoding: arrays.mz.0,
@@ -283,6 +301,13 @@ impl CentroidedWriter {
                 group: None,
             },
         ];
+        for (kind, extra) in
+            [(cv::SIGNAL_TO_NOISE_ARRAY, &arrays.snr), (cv::RESOLUTION_ARRAY, &arrays.resolution)]
+        {
+            if let Some((encoding, base64)) = extra {
+                array_texts.push(ArrayText { kind, encoding: *encoding, base64, group: None });
+            }
+        }
         let tic = meta.stored_tic.unwrap_or(arrays.tic);
         let spectrum = SpectrumText {
             index: self.entries.len(),

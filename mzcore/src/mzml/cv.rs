@@ -39,6 +39,10 @@ pub const ISOLATION_UPPER: Term = ("MS:1000829", "isolation window upper offset"
 pub const MZ_ARRAY: Term = ("MS:1000514", "m/z array");
 /// MS:1000515 intensity array.
 pub const INTENSITY_ARRAY: Term = ("MS:1000515", "intensity array");
+/// MS:1000517 signal to noise array.
+pub const SIGNAL_TO_NOISE_ARRAY: Term = ("MS:1000517", "signal to noise array");
+/// MS:1002529 resolution array.
+pub const RESOLUTION_ARRAY: Term = ("MS:1002529", "resolution array");
 /// MS:1000595 time array.
 pub const TIME_ARRAY: Term = ("MS:1000595", "time array");
 /// MS:1000786 non-standard data array.

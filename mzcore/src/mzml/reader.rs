@@ -1026,5 +1026,7 @@ pub const INTERPRETED_TERMS: &[cv::Term] = &[
     cv::MZ_ARRAY,
     cv::INTENSITY_ARRAY,
     cv::TIME_ARRAY,
+    cv::SIGNAL_TO_NOISE_ARRAY,
+    cv::RESOLUTION_ARRAY,
     cv::TIC_CHROMATOGRAM,
 ];

@@ -616,6 +616,10 @@ impl Body<'_> {
             st.kind = Some(ArrayKind::Mz);
         } else if p.is(cv::INTENSITY_ARRAY) {
             st.kind = Some(ArrayKind::Intensity);
+        } else if p.is(cv::SIGNAL_TO_NOISE_ARRAY) && !self.is_chromatogram {
+            st.kind = Some(ArrayKind::SignalToNoise);
+        } else if p.is(cv::RESOLUTION_ARRAY) && !self.is_chromatogram {
+            st.kind = Some(ArrayKind::Resolution);
         } else if p.is(cv::TIME_ARRAY) {
             if self.is_chromatogram {
                 st.kind = Some(ArrayKind::Time);
