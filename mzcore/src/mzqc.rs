@@ -606,3 +606,130 @@ impl MzQc {
         Ok(true)
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::mzml::{Writer, WriterOptions};
+    use crate::screen::{ScreenConfig, Sha256Reader, screen_reader};
+    use crate::spectrum::{Peaks, Representation, SpectrumMeta};
+
+    fn value(run: &RunQuality, acc: &str) -> Option<Value> {
+        run.quality_metrics.iter().find(|m| m.accession == acc).map(|m| m.value.clone())
+    }
+
+    /// Four MS1 scans (TIC 30, 400, 20, 0) at 1.0, 1.5, 2.5, 3.0 min and two MS2 scans; the
+    /// expected metrics are worked out by hand from the definitions in psi-ms.obo 4.1.257.
+    #[test]
+    fn metrics_of_a_small_run_match_hand_computed_values() {
+        let scans: [(u8, f64, f64); 6] = [
+            (1, 1.0, 30.0),
+            (2, 1.25, 5.0),
+            (1, 1.5, 400.0),
+            (1, 2.5, 20.0),
+            (2, 2.75, 7.0),
+            (1, 3.0, 0.0),
+        ];
+        let mut w =
+            Writer::new(Vec::new(), WriterOptions { spectrum_count: 6, ..Default::default() })
+                .unwrap();
+        for (i, (level, rt, tic)) in scans.iter().enumerate() {
+            let meta = SpectrumMeta {
+                id: format!("scan={}", i + 1),
+                ms_level: *level,
+                rt_min: Some(*rt),
+                representation: Representation::Centroid,
+                ..Default::default()
+            };
+            let peaks = Peaks { mz: vec![100.0, 150.0], intensity: vec![tic / 2.0, tic / 2.0] };
+            w.write_spectrum(&meta, &peaks).unwrap();
+        }
+        let doc = w.finish().unwrap();
+        let pool = crate::pipeline::thread_pool(1).unwrap();
+        let report =
+            screen_reader(Sha256Reader::new(&doc[..]), &ScreenConfig::default(), &pool).unwrap();
+        let input = RunInput::new("r1", Path::new("/data/a b.mzML"), std::time::UNIX_EPOCH);
+        let run = run_quality(&input, &report);
+        assert_eq!(value(&run, "MS:4000059"), Some(json!(4)));
+        assert_eq!(value(&run, "MS:4000060"), Some(json!(2)));
+        assert_eq!(value(&run, "MS:4000070"), Some(json!([60.0, 180.0])));
+        assert_eq!(value(&run, "MS:4000069"), Some(json!([100.0, 150.0])));
+        assert_eq!(value(&run, "MS:4000067"), Some(json!(120.0)));
+        assert_eq!(value(&run, "MS:4000099"), Some(json!(1)));
+        assert_eq!(value(&run, "MS:4000100"), Some(json!(0)));
+        assert_eq!(value(&run, "MS:4000204"), Some(json!(400.0)));
+        assert_eq!(value(&run, "MS:4000202"), Some(json!(200.0)));
+        // Trapezoids over seconds: 30 s x (30+400)/2 + 60 s x (400+20)/2 + 30 s x (20+0)/2.
+        assert_eq!(value(&run, "MS:4000029"), Some(json!(6450.0 + 12600.0 + 300.0)));
+        assert_eq!(value(&run, "MS:4000030"), Some(json!(90.0 * 6.0)));
+        // 30 -> 400 is a jump of more than 10-fold; 400 -> 20 a fall of more than 10-fold;
+        // 20 -> 0 is not counted (no ratio).
+        assert_eq!(value(&run, "MS:4000097"), Some(json!(1)));
+        assert_eq!(value(&run, "MS:4000098"), Some(json!(1)));
+        // MS1 gaps 30, 60, 30 s.
+        assert_eq!(value(&run, "MS:4000192"), Some(json!(30.0)));
+        assert_eq!(value(&run, "MS:4000065"), Some(json!(1.0 / 30.0)));
+        assert_eq!(value(&run, "MS:4000095"), Some(json!(1.0 / 60.0)));
+        assert_eq!(value(&run, "MS:4000066"), Some(json!(1.0 / 90.0)));
+        assert_eq!(
+            value(&run, "MS:4000211"),
+            Some(
+                json!({"MS:1000285": [30.0, 400.0, 20.0, 0.0], "UO:0000010": [60.0, 90.0, 150.0, 180.0]})
+            )
+        );
+        let f = &run.metadata.input_files[0];
+        assert_eq!((f.name.as_str(), f.location.as_str()), ("a b.mzML", "file:///data/a%20b.mzML"));
+        assert_eq!(f.file_properties.last().unwrap().value, Some(json!("1970-01-01T00:00:00Z")));
+        // Every metric written is listed in METRICS with its unit.
+        for m in &run.quality_metrics {
+            let def = METRICS.iter().find(|d| d.0 == m.accession).unwrap();
+            assert_eq!(def.1, m.name);
+            assert_eq!(def.2.map(|u| u.0.to_owned()), m.unit.as_ref().map(|u| u.accession.clone()));
+        }
+    }
+
+    #[test]
+    fn repeated_file_names_are_replaced_by_their_location_and_empty_documents_are_not_written() {
+        let report = |sha: &str| FileReport {
+            summary: crate::screen::FileSummary {
+                status: crate::screen::FileStatus::Ok,
+                error: String::new(),
+                spectra: 0,
+                ms1: 0,
+                ms2: 0,
+                rt_start_min: None,
+                rt_end_min: None,
+                flagged_spectra: 0,
+                halogen_features: 0,
+                odd_nominal_features: 0,
+                unreadable: Vec::new(),
+                missing_from_index: Vec::new(),
+                index_entries: None,
+                sha256: sha.into(),
+                bytes: 0,
+                checksum: Default::default(),
+            },
+            spectra: Vec::new(),
+            ions: Vec::new(),
+            features: Vec::new(),
+            traces: Vec::new(),
+            mz_range: None,
+        };
+        let t = std::time::UNIX_EPOCH;
+        let a = run_quality(&RunInput::new("x", Path::new("/a/n.mzML"), t), &report("aa"));
+        let b = run_quality(&RunInput::new("x-2", Path::new("/b/n.mzML"), t), &report("bb"));
+        let doc = MzQc::new(vec![a, b], None, t);
+        let names: Vec<&str> = doc
+            .mzqc
+            .run_qualities
+            .iter()
+            .map(|r| r.metadata.input_files[0].name.as_str())
+            .collect();
+        assert_eq!(names, ["file:///a/n.mzML", "file:///b/n.mzML"]);
+        assert_eq!(MzQc::from_json(&doc.to_json()).unwrap(), doc);
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("x.mzQC");
+        assert!(!MzQc::new(Vec::new(), None, t).write(&p).unwrap());
+        assert!(!p.exists());
+    }
+}

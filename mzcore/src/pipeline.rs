@@ -172,7 +172,8 @@ pub fn process_spectrum(
 
 /// A centroid list that carries its peaks' S/N (MS:1000517 signal to noise array, as the
 /// centroided files of [`crate::mzml::CentroidedWriter`] do) keeps the peaks whose stored S/N
-/// reaches `min_snr`, with that S/N, instead of re-estimating the noise from the list (which,
+/// reaches `centroided_min_snr` (default 1: every picked peak, since an interpolated apex may
+/// sit a little below the `min_snr` its highest point passed), with that S/N, instead of re-estimating the noise from the list (which,
 /// for a list of picked peaks only, measures S/N against the weakest peaks). Without the
 /// array, or with one of another length, `centroids` stays as thresholded.
 fn stored_snr_peaks(
@@ -203,7 +204,7 @@ fn stored_snr_peaks(
     }
     centroids.clear();
     for (i, ((&mz, &y), &s)) in peaks.mz.iter().zip(&peaks.intensity).zip(&snr).enumerate() {
-        if s >= params.min_snr && y > 0.0 && y.is_finite() && mz.is_finite() {
+        if s >= params.centroided_min_snr && y > 0.0 && y.is_finite() && mz.is_finite() {
             let r = resolution.get(i).copied().unwrap_or(0.0);
             let fwhm = if r > 0.0 && r.is_finite() { mz / r } else { 0.0 };
             centroids.push(crate::centroid::Centroid { mz, intensity: y, area: y, snr: s, fwhm });

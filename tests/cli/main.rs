@@ -12,3 +12,4 @@ mod merge;
 mod nothing_lost;
 mod peaks;
 mod run;
+mod standards;
