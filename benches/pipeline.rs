@@ -6,6 +6,10 @@
 //! points, with its DDA scans): decode + centroid against decode + centroid + flag + features,
 //! both with 2 workers. Goal: at most 20 % more time.
 //!
+//! Third: what the compound stage adds on top (related ions listed while flagging, then
+//! co-elution grouping, relations and evidence): decode + centroid + flag + features against
+//! the same plus compounds, as `mzsift run` does. Goal: at most 10 % more time.
+//!
 //! Run: `cargo bench --bench pipeline` (the files are cached in target/bench-data/).
 
 // criterion_group! generates an undocumented `pub fn`.
@@ -17,8 +21,9 @@ mod bigfile;
 use std::hint::black_box;
 
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
+use mzcore::compound::{self, CompoundSettings, Relations};
 use mzcore::feature::FeatureBuilder;
-use mzcore::flag::{FlagSettings, flag_spectrum};
+use mzcore::flag::{FlagSettings, flag_spectrum_related};
 use mzcore::mzml::Reader;
 use mzcore::pipeline::{self, PipelineSettings};
 use mzcore::synth::{self, Scenario, SizeOptions};
@@ -53,21 +58,40 @@ fn cached_hr() -> std::path::PathBuf {
     path
 }
 
-/// Decode + centroid, and with `flag` also flagging on the workers and feature grouping in
-/// file order; returns the number of features (or of centroids without `flag`).
-fn screen(path: &std::path::Path, pool: &rayon::ThreadPool, flag: bool) -> usize {
+/// What [`screen`] does after decode + centroid.
+#[derive(Clone, Copy, PartialEq)]
+enum Stage {
+    /// Nothing more.
+    Centroid,
+    /// Flagging on the workers and feature grouping in file order.
+    Features,
+    /// As `Features`, with related ions listed, then the compound stage.
+    Compounds,
+}
+
+/// Decode + centroid and the stages of `stage`; returns the number of compounds, features or
+/// centroids.
+fn screen(path: &std::path::Path, pool: &rayon::ThreadPool, stage: Stage) -> usize {
     let mut reader = Reader::from_path(path).unwrap();
     let settings = FlagSettings::default();
     let mut features = FeatureBuilder::new(&settings);
+    let relations = Relations::defaults();
     let mut centroids = 0;
+    let mut ms1 = 0;
     pipeline::run(
         &mut reader,
         pool,
         &PipelineSettings::default(),
-        move |p| flag.then(|| flag_spectrum(&p.meta, &p.centroids, p.resolution, &settings)),
+        move |p| {
+            let related = (stage == Stage::Compounds).then_some(&relations);
+            (stage != Stage::Centroid).then(|| {
+                flag_spectrum_related(&p.meta, &p.centroids, p.resolution, &settings, related)
+            })
+        },
         |r| {
             let (p, flags) = r?;
             centroids += p.centroids.len();
+            ms1 += usize::from(p.meta.ms_level <= 1);
             if let Some(f) = flags {
                 features.push(&p.meta, &f);
             }
@@ -75,7 +99,17 @@ fn screen(path: &std::path::Path, pool: &rayon::ThreadPool, flag: bool) -> usize
         },
     )
     .unwrap();
-    if flag { features.finish().len() } else { centroids }
+    match stage {
+        Stage::Centroid => centroids,
+        Stage::Features => features.finish().len(),
+        Stage::Compounds => {
+            let mut f = features.finish();
+            compound::group(&mut f, ms1, "esi", &CompoundSettings::default())
+                .unwrap()
+                .compounds
+                .len()
+        }
+    }
 }
 
 fn bench_flagging(c: &mut Criterion) {
@@ -86,10 +120,13 @@ fn bench_flagging(c: &mut Criterion) {
     g.sample_size(10);
     g.throughput(Throughput::Bytes(bytes));
     g.bench_function("decode_centroid_2_threads", |b| {
-        b.iter(|| black_box(screen(&path, &pool, false)))
+        b.iter(|| black_box(screen(&path, &pool, Stage::Centroid)))
     });
     g.bench_function("decode_centroid_flag_features_2_threads", |b| {
-        b.iter(|| black_box(screen(&path, &pool, true)))
+        b.iter(|| black_box(screen(&path, &pool, Stage::Features)))
+    });
+    g.bench_function("decode_centroid_flag_features_compounds_2_threads", |b| {
+        b.iter(|| black_box(screen(&path, &pool, Stage::Compounds)))
     });
     g.finish();
 }

@@ -21,7 +21,8 @@ pub struct Input {
 }
 
 /// The files of a per-input report folder besides the completion record.
-pub const REPORT_FILES: [&str; 3] = ["spectra.tsv", "ions.tsv", "features.tsv"];
+pub const REPORT_FILES: [&str; 6] =
+    ["spectra.tsv", "ions.tsv", "features.tsv", "compounds.tsv", "traces.tsv", "cluster.tsv"];
 
 /// The completion record kept in each report folder.
 #[derive(Serialize, Deserialize, PartialEq, Debug, Clone)]
@@ -138,6 +139,8 @@ struct BatchRow<'a> {
     flagged_spectra: Option<usize>,
     halogen_features: Option<usize>,
     odd_nominal_features: Option<usize>,
+    halogen_compounds: Option<usize>,
+    odd_nominal_compounds: Option<usize>,
     unreadable_spectra: Option<usize>,
     seconds: f64,
 }
@@ -154,6 +157,8 @@ const BATCH_COLUMNS: &[&str] = &[
     "flagged_spectra",
     "halogen_features",
     "odd_nominal_features",
+    "halogen_compounds",
+    "odd_nominal_compounds",
     "unreadable_spectra",
     "seconds",
 ];
@@ -284,6 +289,8 @@ pub fn write_batch(out: &Path, outcomes: &[Outcome]) -> anyhow::Result<()> {
                 flagged_spectra: s.map(|s| s.flagged_spectra),
                 halogen_features: s.map(|s| s.halogen_features),
                 odd_nominal_features: s.map(|s| s.odd_nominal_features),
+                halogen_compounds: s.map(|s| s.halogen_compounds),
+                odd_nominal_compounds: s.map(|s| s.odd_nominal_compounds),
                 unreadable_spectra: s.map(|s| s.unreadable.len()),
                 seconds: (o.seconds * 1000.0).round() / 1000.0,
             }

@@ -38,7 +38,7 @@
 //!         m2_ratio: 0.97, m2_expected: 0.98, m4_ratio: 0.31, m4_expected: 0.32,
 //!         spacing: SpacingVerdict::Consistent, m2_delta: Some(1.99705), nominal_mass: Some(288),
 //!         odd_nominal: OddNominal::False, ion_type: "[M-H]-".into(), tolerance_da: 0.003,
-//!         reason: String::new(),
+//!         reason: String::new(), cluster: Default::default(),
 //!     };
 //!     fb.push(&meta, &SpectrumFlags { has_halogen: true, ions: vec![ion], ..Default::default() });
 //! }
@@ -51,7 +51,8 @@
 
 use serde::Serialize;
 
-use crate::flag::{FlagSettings, FlaggedIon, OddNominal, SpectrumFlags};
+use crate::centroid::ResolutionClass;
+use crate::flag::{FlagSettings, FlaggedIon, IonCluster, OddNominal, SpectrumFlags};
 use crate::spectrum::SpectrumMeta;
 
 /// One chromatographic feature.
@@ -95,11 +96,49 @@ pub struct Feature {
     pub odd_nominal: OddNominal,
     /// True when any scan's ion was the molecular-ion candidate.
     pub molecular_candidate: bool,
+    /// The compound the feature belongs to (`compounds.tsv`), 0 before grouping.
+    pub compound: usize,
+    /// Resolution class of the scans (not a column).
+    #[serde(skip)]
+    pub resolution: Option<ResolutionClass>,
+    /// Ion type used for the nitrogen rule (not a column).
+    #[serde(skip)]
+    pub ion_type: String,
+    /// One point per scan of the feature (not a column).
+    #[serde(skip)]
+    pub trace: Vec<FeaturePoint>,
+    /// The cluster at the most intense agreeing scan (not a column).
+    #[serde(skip)]
+    pub apex_cluster: IonCluster,
+}
+
+/// One scan of a feature: the monoisotopic height and the M+2 and M+4 shell heights.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FeaturePoint {
+    /// Position among the file's MS1 scans (0-based).
+    pub ms1: usize,
+    /// Spectrum index.
+    pub scan: usize,
+    /// Retention time, minutes.
+    pub rt_min: Option<f64>,
+    /// Monoisotopic height.
+    pub intensity: f64,
+    /// M+2 shell height (0 when absent).
+    pub m2: f64,
+    /// M+4 shell height (0 when absent).
+    pub m4: f64,
+    /// The scan's posterior probability of Cl/Br.
+    pub halogen_probability: f64,
+    /// True when the scan's assignment is the feature's consensus.
+    pub agrees: bool,
 }
 
 #[derive(Debug, Clone)]
 struct Track {
     ions: Vec<FlaggedIon>,
+    /// MS1 ordinal of each ion.
+    ordinals: Vec<usize>,
+    resolution: Option<ResolutionClass>,
     /// MS1 ordinal of the last ion.
     last: usize,
     /// Running sums for the weighted m/z.
@@ -183,11 +222,14 @@ impl FeatureBuilder {
             tr.wmz += ion.intensity * ion.mz;
             tr.last = now;
             tr.ions.push(ion.clone());
+            tr.ordinals.push(now);
         }
         for (i, ion) in flags.ions.iter().enumerate() {
             if !ion_used[i] {
                 self.open.push(Track {
                     ions: vec![ion.clone()],
+                    ordinals: vec![now],
+                    resolution: flags.resolution,
                     last: now,
                     wsum: ion.intensity,
                     wmz: ion.intensity * ion.mz,
@@ -264,6 +306,23 @@ fn summarize(number: usize, t: &Track) -> Feature {
     };
     let halogen_score =
         agree.iter().map(|i| i.halogen_probability).sum::<f64>() / agree.len() as f64;
+    let shell = |ion: &FlaggedIon, k: usize| ion.cluster.observed.get(k).copied().unwrap_or(0.0);
+    let trace = ions
+        .iter()
+        .zip(&t.ordinals)
+        .map(|(ion, &ms1)| FeaturePoint {
+            ms1,
+            scan: ion.scan,
+            rt_min: ion.rt_min,
+            intensity: ion.intensity,
+            m2: shell(ion, 2),
+            m4: shell(ion, 4),
+            halogen_probability: ion.halogen_probability,
+            agrees: ion.assignment == label,
+        })
+        .collect();
+    let apex_agree =
+        agree.iter().max_by(|a, b| a.intensity.total_cmp(&b.intensity)).expect("non-empty");
     Feature {
         feature: number,
         mz: t.mz(),
@@ -284,5 +343,10 @@ fn summarize(number: usize, t: &Track) -> Feature {
         nominal_mass,
         odd_nominal,
         molecular_candidate: ions.iter().any(|i| i.molecular_candidate),
+        compound: 0,
+        resolution: t.resolution,
+        ion_type: first.ion_type.clone(),
+        trace,
+        apex_cluster: apex_agree.cluster.clone(),
     }
 }

@@ -146,6 +146,13 @@ pub struct FlagSettings {
     pub feature_min_scans: usize,
     /// Features: MS1 scans that may be missing inside a feature (default 1).
     pub feature_max_gap: usize,
+    /// Explaining away: a monoisotopic candidate next to a peak at least this many times
+    /// taller is a side lobe or shoulder when its M+1 or M+2 partner is that peak's own
+    /// isotopologue (default 5; see [`cluster::borrows_partners`]).
+    pub side_lobe_ratio: f64,
+    /// Explaining away: how near (in FWHM of the candidate peak) a taller peak must be
+    /// (default 5).
+    pub side_lobe_fwhm: f64,
 }
 
 impl Default for FlagSettings {
@@ -161,6 +168,8 @@ impl Default for FlagSettings {
             ei_min_relative: 0.05,
             feature_min_scans: 3,
             feature_max_gap: 1,
+            side_lobe_ratio: 5.0,
+            side_lobe_fwhm: 5.0,
         }
     }
 }
@@ -195,6 +204,12 @@ impl FlagSettings {
         }
         if !(self.ei_min_relative >= 0.0 && self.ei_min_relative <= 1.0) {
             return bad("flag ei_min_relative must be in [0, 1]");
+        }
+        if !(self.side_lobe_ratio >= 1.0 && self.side_lobe_ratio.is_finite()) {
+            return bad("flag side_lobe_ratio must be at least 1");
+        }
+        if !(self.side_lobe_fwhm >= 0.0 && self.side_lobe_fwhm.is_finite()) {
+            return bad("flag side_lobe_fwhm must be 0 or more (0 turns the rule off)");
         }
         if self.feature_min_scans == 0 {
             return bad("feature_min_scans must be at least 1");
@@ -266,6 +281,19 @@ pub struct FlaggedIon {
     pub tolerance_da: f64,
     /// Human-readable reasons for the halogen and parity calls.
     pub reason: String,
+    /// Observed and fitted shell heights (not a column of `ions.tsv`).
+    #[serde(skip)]
+    pub cluster: IonCluster,
+}
+
+/// The shells of a flagged ion's cluster: observed heights (summed per nominal shell) and the
+/// heights the best hypothesis fits. Shell 0 is M; shell 2 is M+2.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct IonCluster {
+    /// Observed intensity per shell.
+    pub observed: Vec<f64>,
+    /// Fitted intensity per shell under the best hypothesis.
+    pub expected: Vec<f64>,
 }
 
 /// The best halogen assignment of a spectrum (the flagged ion with the most intense
@@ -299,6 +327,9 @@ pub struct SpectrumFlags {
     pub clusters: usize,
     /// Flagged ions, by ascending m/z.
     pub ions: Vec<FlaggedIon>,
+    /// Resolution class the spectrum was flagged at.
+    #[serde(skip)]
+    pub resolution: Option<ResolutionClass>,
 }
 
 /// Flags one spectrum's centroids. Pure and cheap; safe to call from any thread.
@@ -310,6 +341,20 @@ pub fn flag_spectrum(
     centroids: &[Centroid],
     resolution: ResolutionClass,
     settings: &FlagSettings,
+) -> SpectrumFlags {
+    flag_spectrum_related(meta, centroids, resolution, settings, None)
+}
+
+/// [`flag_spectrum`] that also lists the clusters related to a flagged ion or to the
+/// molecular-ion candidate by `relations` (another adduct of the same neutral, a parent or a
+/// fragment by a listed loss), so that the compound stage can group them
+/// ([`crate::compound`]). They are listed like the others (`halogen` as scored).
+pub fn flag_spectrum_related(
+    meta: &SpectrumMeta,
+    centroids: &[Centroid],
+    resolution: ResolutionClass,
+    settings: &FlagSettings,
+    relations: Option<&crate::compound::Relations>,
 ) -> SpectrumFlags {
     let sorted;
     let centroids = if centroids.windows(2).all(|w| w[0].mz <= w[1].mz) {
@@ -324,7 +369,11 @@ pub fn flag_spectrum(
     let high = resolution == ResolutionClass::High;
     let clusters = cluster::find_clusters(centroids, tolerance, high, settings);
     let ion_type = nitrogen::ion_type_for(meta, settings);
-    let mut out = SpectrumFlags { clusters: clusters.len(), ..Default::default() };
+    let mut out = SpectrumFlags {
+        clusters: clusters.len(),
+        resolution: Some(resolution),
+        ..Default::default()
+    };
     let unc_at = |mz: f64| if high { tolerance.at(mz) } else { 0.15 };
     let molecular = if meta.ms_level <= 1 {
         let plausible: Vec<bool> = clusters
@@ -348,29 +397,50 @@ pub fn flag_spectrum(
         None
     };
     let ei = nitrogen::is_ei(&ion_type);
+    let sign = ion_type.as_ref().map_or(
+        match meta.polarity {
+            crate::spectrum::Polarity::Negative => -1,
+            _ => 1,
+        },
+        |t| t.charge().signum(),
+    );
+    let scores: Vec<halogen::Score> = clusters
+        .iter()
+        .map(|c| {
+            let mono = &centroids[c.mono];
+            let mut s = c.score.clone();
+            // High resolution: a Cl/Br-bearing ion needs a plausible mass defect.
+            if s.halogen
+                && high
+                && !nitrogen::defect_plausible(
+                    mono.mz,
+                    c.charge,
+                    &ion_type,
+                    s.n_cl,
+                    s.n_br,
+                    unc_at(mono.mz),
+                )
+            {
+                s.halogen = false;
+                s.reason = "mass defect implausible for the Cl/Br assignment";
+            }
+            s
+        })
+        .collect();
+    let related = match relations {
+        Some(r) if meta.ms_level <= 1 => {
+            related_clusters(centroids, &clusters, &scores, molecular, sign, ei, tolerance, r)
+        }
+        _ => vec![false; clusters.len()],
+    };
     for (i, c) in clusters.iter().enumerate() {
         let is_mol = molecular == Some(i);
         let mono = &centroids[c.mono];
-        let mut s = c.score.clone();
-        // High resolution: a Cl/Br-bearing ion needs a plausible mass defect.
-        if s.halogen
-            && high
-            && !nitrogen::defect_plausible(
-                mono.mz,
-                c.charge,
-                &ion_type,
-                s.n_cl,
-                s.n_br,
-                unc_at(mono.mz),
-            )
-        {
-            s.halogen = false;
-            s.reason = "mass defect implausible for the Cl/Br assignment";
-        }
+        let s = scores[i].clone();
         // Look-alike rows keep a sulfur or silicon ion's chromatographic trace whole, so the
         // scans where a Cl/Br hypothesis wins by chance are outvoted in its feature.
         let look_alike = matches!(s.best, Hypothesis::Sulfur(_) | Hypothesis::Silicon(_));
-        if !(s.halogen || is_mol || look_alike) {
+        if !(s.halogen || is_mol || look_alike || related[i]) {
             continue;
         }
         let unc = unc_at(mono.mz);
@@ -383,13 +453,6 @@ pub fn flag_spectrum(
         } else {
             nitrogen::nominal(mono.mz, c.charge, &ion_type, s.n_cl, s.n_br, unc)
         };
-        let sign = ion_type.as_ref().map_or(
-            match meta.polarity {
-                crate::spectrum::Polarity::Negative => -1,
-                _ => 1,
-            },
-            |t| t.charge().signum(),
-        );
         out.ions.push(FlaggedIon {
             scan: meta.index,
             spectrum_id: meta.id.clone(),
@@ -419,6 +482,10 @@ pub fn flag_spectrum(
             ion_type: ion_type.as_ref().map_or_else(String::new, |t| t.to_string()),
             tolerance_da: tolerance.at(mono.mz),
             reason: format!("{}; {}", s.reason, parity_reason),
+            cluster: IonCluster {
+                observed: c.shells.intensity[..c.shells.len].to_vec(),
+                expected: s.fitted[..c.shells.len].to_vec(),
+            },
         });
         if is_mol {
             out.molecular_ion = Some(out.ions.len() - 1);
@@ -442,6 +509,46 @@ pub fn flag_spectrum(
         });
     }
     out
+}
+
+/// Marks the clusters that stand at a related m/z (see [`flag_spectrum_related`]) of an
+/// anchor: a halogen-flagged cluster or the molecular-ion candidate.
+#[allow(clippy::too_many_arguments)]
+fn related_clusters(
+    centroids: &[Centroid],
+    clusters: &[cluster::Cluster],
+    scores: &[halogen::Score],
+    molecular: Option<usize>,
+    sign: i32,
+    ei: bool,
+    tolerance: Tolerance,
+    relations: &crate::compound::Relations,
+) -> Vec<bool> {
+    let mut related = vec![false; clusters.len()];
+    let mut by_mz: Vec<(f64, usize)> =
+        clusters.iter().enumerate().map(|(i, c)| (centroids[c.mono].mz, i)).collect();
+    by_mz.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let mut targets = Vec::new();
+    for (i, c) in clusters.iter().enumerate() {
+        if !(scores[i].halogen || molecular == Some(i)) {
+            continue;
+        }
+        let mz = centroids[c.mono].mz;
+        relations.related_mz(mz, sign * i32::from(c.charge), ei, &mut targets);
+        for &t in &targets {
+            let tol = tolerance.at(t);
+            let from = by_mz.partition_point(|p| p.0 < t - tol);
+            for &(m, j) in &by_mz[from..] {
+                if m > t + tol {
+                    break;
+                }
+                if j != i {
+                    related[j] = true;
+                }
+            }
+        }
+    }
+    related
 }
 
 #[cfg(test)]

@@ -690,30 +690,16 @@ mod tests {
 
     #[test]
     fn repeated_file_names_are_replaced_by_their_location_and_empty_documents_are_not_written() {
-        let report = |sha: &str| FileReport {
-            summary: crate::screen::FileSummary {
-                status: crate::screen::FileStatus::Ok,
-                error: String::new(),
-                spectra: 0,
-                ms1: 0,
-                ms2: 0,
-                rt_start_min: None,
-                rt_end_min: None,
-                flagged_spectra: 0,
-                halogen_features: 0,
-                odd_nominal_features: 0,
-                unreadable: Vec::new(),
-                missing_from_index: Vec::new(),
-                index_entries: None,
-                sha256: sha.into(),
-                bytes: 0,
-                checksum: Default::default(),
-            },
-            spectra: Vec::new(),
-            ions: Vec::new(),
-            features: Vec::new(),
-            traces: Vec::new(),
-            mz_range: None,
+        let pool = crate::pipeline::thread_pool(1).unwrap();
+        let mut w = Writer::new(Vec::new(), WriterOptions::default()).unwrap();
+        let meta = SpectrumMeta { id: "scan=1".into(), ms_level: 1, ..Default::default() };
+        w.write_spectrum(&meta, &Peaks { mz: vec![100.0], intensity: vec![1.0] }).unwrap();
+        let doc = w.finish().unwrap();
+        let report = |sha: &str| {
+            let mut r = screen_reader(Sha256Reader::new(&doc[..]), &ScreenConfig::default(), &pool)
+                .unwrap();
+            r.summary.sha256 = sha.into();
+            r
         };
         let t = std::time::UNIX_EPOCH;
         let a = run_quality(&RunInput::new("x", Path::new("/a/n.mzML"), t), &report("aa"));

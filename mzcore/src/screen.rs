@@ -16,6 +16,7 @@ use crate::hash::BackgroundDigest;
 use serde::{Deserialize, Serialize};
 
 use crate::centroid::CentroidParams;
+use crate::compound::{self, ClusterRow, Compound, CompoundSettings, TraceRow};
 use crate::error::{Error, ErrorKind, Result};
 use crate::feature::{Feature, FeatureBuilder};
 use crate::flag::{self, FlagSettings, FlaggedIon, OddNominal, SpectrumFlags};
@@ -92,6 +93,8 @@ pub struct ScreenConfig {
     pub centroid: CentroidParams,
     /// Halogen and nitrogen-rule flagging, and feature grouping.
     pub flag: FlagSettings,
+    /// Grouping of features into compounds, and the evidence for halogen calls.
+    pub compound: CompoundSettings,
     /// Which files in open standard formats are written besides the TSV reports.
     pub output: OutputSettings,
 }
@@ -147,6 +150,7 @@ impl ScreenConfig {
     pub fn validate(&self) -> Result<()> {
         self.centroid.validate()?;
         self.flag.validate()?;
+        self.compound.validate()?;
         if self.pipeline.in_flight == 0 {
             return Err(Error::new(ErrorKind::Config(
                 "pipeline.in_flight must be at least 1".into(),
@@ -326,6 +330,7 @@ pub const FEATURE_COLUMNS: &[&str] = &[
     "nominal_mass",
     "odd_nominal",
     "molecular_candidate",
+    "compound",
 ];
 
 fn resolution_name(r: crate::centroid::ResolutionClass) -> &'static str {
@@ -416,6 +421,12 @@ pub struct FileSummary {
     pub halogen_features: usize,
     /// Features whose molecular ion has an odd nominal mass.
     pub odd_nominal_features: usize,
+    /// Compounds called halogenated (see [`crate::compound`]).
+    #[serde(default)]
+    pub halogen_compounds: usize,
+    /// Compounds whose neutral has an odd nominal mass.
+    #[serde(default)]
+    pub odd_nominal_compounds: usize,
     /// Spectra that could not be read or processed.
     pub unreadable: Vec<UnreadableSpectrum>,
     /// Ids in the file's index that were never read (cut-off or skipped spectra).
@@ -443,6 +454,12 @@ pub struct FileReport {
     pub ions: Vec<FlaggedIon>,
     /// One row per feature.
     pub features: Vec<Feature>,
+    /// One row per compound (`compounds.tsv`).
+    pub compounds: Vec<Compound>,
+    /// Extracted-ion traces of the halogenated compounds (`traces.tsv`).
+    pub compound_traces: Vec<TraceRow>,
+    /// Apex isotope clusters of the halogenated compounds (`cluster.tsv`).
+    pub compound_clusters: Vec<ClusterRow>,
     /// One extracted-ion trace per [`TraceTarget`] asked for (empty for [`screen_file`]).
     pub traces: Vec<Vec<TracePoint>>,
     /// Smallest and largest decoded m/z over the readable spectra.
@@ -667,6 +684,8 @@ pub fn screen_reader_with<R: BufRead>(
         flagged_spectra: 0,
         halogen_features: 0,
         odd_nominal_features: 0,
+        halogen_compounds: 0,
+        odd_nominal_compounds: 0,
         unreadable: Vec::new(),
         missing_from_index: Vec::new(),
         index_entries: None,
@@ -683,11 +702,19 @@ pub fn screen_reader_with<R: BufRead>(
     let mut unplaced: Vec<UnreadableSpectrum> = Vec::new();
     let mut reader = Reader::with_options(input, config.reader.options())?;
     let flag_settings = config.flag.clone();
+    let relations = std::sync::Arc::new(config.compound.validate()?);
+    let mut ionization = crate::spectrum::Ionization::Unknown;
     let shared_targets: std::sync::Arc<[TraceTarget]> = targets.into();
     let extra = move |source: &crate::spectrum::Spectrum, p: &ProcessedSpectrum| {
         let copy =
             centroided_encoding.map(|e| crate::mzml::CentroidedArrays::prepare(source, p, e));
-        let flags = flag::flag_spectrum(&p.meta, &p.centroids, p.resolution, &flag_settings);
+        let flags = flag::flag_spectrum_related(
+            &p.meta,
+            &p.centroids,
+            p.resolution,
+            &flag_settings,
+            Some(&relations),
+        );
         let traced: Vec<Option<f64>> = shared_targets
             .iter()
             .map(|t| {
@@ -716,6 +743,9 @@ pub fn screen_reader_with<R: BufRead>(
                     }
                 }
                 summary.spectra += 1;
+                if ionization == crate::spectrum::Ionization::Unknown {
+                    ionization = p.meta.ionization;
+                }
                 if p.meta.ms_level <= 1 {
                     summary.ms1 += 1;
                 } else {
@@ -808,7 +838,12 @@ pub fn screen_reader_with<R: BufRead>(
             }
         }
     }
-    let features = features.finish();
+    let mut features = features.finish();
+    let grouping =
+        compound::group(&mut features, summary.ms1, ionization.name(), &config.compound)?;
+    summary.halogen_compounds = grouping.compounds.iter().filter(|c| c.halogen).count();
+    summary.odd_nominal_compounds =
+        grouping.compounds.iter().filter(|c| c.odd_nominal == OddNominal::True).count();
     summary.halogen_features = features.iter().filter(|f| f.n_cl + f.n_br > 0).count();
     summary.odd_nominal_features =
         features.iter().filter(|f| f.odd_nominal == OddNominal::True).count();
@@ -830,7 +865,17 @@ pub fn screen_reader_with<R: BufRead>(
             .map(|u| format!("{} unreadable spectra; first: {}", summary.unreadable.len(), u.error))
     });
     summary.error = crate::report::escape_text(&first.unwrap_or_default());
-    Ok(FileReport { summary, spectra, ions, features, traces, mz_range })
+    Ok(FileReport {
+        summary,
+        spectra,
+        ions,
+        features,
+        traces,
+        compounds: grouping.compounds,
+        compound_traces: grouping.traces,
+        compound_clusters: grouping.clusters,
+        mz_range,
+    })
 }
 
 /// Most `unreadable` rows added for spectra that a file whose reading stopped early promises in

@@ -74,8 +74,8 @@ pub use acquire::{
     WriteSummary, write_truth,
 };
 pub use scenario::{
-    Background, Compound, Encoding, Fragment, Instrument, Noise, Output, ResolvingPower, Run,
-    RunCompound, ScanPolarity, Scenario, Source, Unit, parse_encoding,
+    Background, Compound, Encoding, ExtraIon, Fragment, Instrument, Noise, Output, ResolvingPower,
+    Run, RunCompound, ScanPolarity, Scenario, SideLobes, Source, Unit, parse_encoding,
 };
 
 use crate::error::Result;

@@ -10,6 +10,7 @@ use std::path::{Path, PathBuf};
 use std::time::{Instant, SystemTime};
 
 use anyhow::Context;
+use mzcore::compound::{CLUSTER_COLUMNS, COMPOUND_COLUMNS, TRACE_COLUMNS};
 use mzcore::report::{self, escape_text};
 use mzcore::screen::{
     self, FEATURE_COLUMNS, FileReport, FileStatus, FileSummary, ION_COLUMNS, SPECTRUM_COLUMNS,
@@ -71,6 +72,9 @@ fn write_reports(
         put("spectra.tsv", &|w| report::write_tsv(w, SPECTRUM_COLUMNS, &report.spectra))?;
         put("ions.tsv", &|w| report::write_tsv(w, ION_COLUMNS, &report.ions))?;
         put("features.tsv", &|w| report::write_tsv(w, FEATURE_COLUMNS, &report.features))?;
+        put("compounds.tsv", &|w| report::write_tsv(w, COMPOUND_COLUMNS, &report.compounds))?;
+        put("traces.tsv", &|w| report::write_tsv(w, TRACE_COLUMNS, &report.compound_traces))?;
+        put("cluster.tsv", &|w| report::write_tsv(w, CLUSTER_COLUMNS, &report.compound_clusters))?;
         extras.place(tmp)?;
         report::write_json_atomic(&tmp.join(COMPLETION_FILE), completion)
     })

@@ -180,6 +180,36 @@ impl IonType {
             .collect()
     }
 
+    /// Number of molecules M in the ion (2 for `[2M+H]+`).
+    pub fn molecules(&self) -> u32 {
+        self.molecules
+    }
+
+    /// Atoms of element `symbol` that the ion type adds (negative: removes), e.g. +1 Cl for
+    /// `[M+Cl]-`, -1 H for `[M-H]-`.
+    pub fn element_change(&self, symbol: &str) -> i64 {
+        self.terms
+            .iter()
+            .map(|t| i64::from(t.sign) * i64::from(t.count) * i64::from(t.formula.count(symbol)))
+            .sum()
+    }
+
+    /// Neutral monoisotopic mass of the molecule M whose ion of this type has m/z `mz`
+    /// (the inverse of [`IonType::mz_from_mass`]).
+    ///
+    /// ```
+    /// use mzcore::chem::{Formula, IonType};
+    /// let glucose = Formula::parse("C6H12O6")?;
+    /// let ion = IonType::parse("[M+Cl]-")?;
+    /// let m = ion.neutral_mass(ion.mz(&glucose)?);
+    /// assert!((m - glucose.monoisotopic_mass()).abs() < 1e-9);
+    /// # Ok::<_, mzcore::Error>(())
+    /// ```
+    pub fn neutral_mass(&self, mz: f64) -> f64 {
+        let atoms = mz * f64::from(self.charge.abs()) + f64::from(self.charge) * ELECTRON_MASS;
+        (atoms - self.adduct_mass()) / f64::from(self.molecules)
+    }
+
     /// Signed charge number z.
     pub fn charge(&self) -> i32 {
         self.charge

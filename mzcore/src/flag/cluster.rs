@@ -217,6 +217,44 @@ pub fn detect_charge(c: &[Centroid], mono: usize, tol: f64, max_charge: u8) -> u
     1
 }
 
+/// Explaining away: true when the candidate at `mono` sits within
+/// [`FlagSettings::side_lobe_fwhm`] FWHM of a centroid at least
+/// [`FlagSettings::side_lobe_ratio`] times taller (a side lobe or shoulder of it) and the
+/// candidate's M+1 or M+2 peak is one that the taller peak's own isotopologue windows hold:
+/// such a partner is already explained and cannot make the candidate a cluster. A candidate
+/// whose partners are its own (outside the taller peak's windows) stays.
+pub fn borrows_partners(
+    c: &[Centroid],
+    mono: usize,
+    z: u8,
+    tol: f64,
+    shells: &Shells,
+    settings: &FlagSettings,
+) -> bool {
+    let m = &c[mono];
+    let reach = settings.side_lobe_fwhm * m.fwhm.max(0.0);
+    if !(reach > 0.0) {
+        return false;
+    }
+    let lo = c.partition_point(|p| p.mz < m.mz - reach);
+    let mut i = lo;
+    while i < c.len() && c[i].mz <= m.mz + reach {
+        let d = &c[i];
+        if i != mono && d.intensity >= settings.side_lobe_ratio * m.intensity {
+            for k in 1..3.min(shells.len) {
+                if let Some(top) = shells.top[k] {
+                    let (wlo, whi) = window(d.mz, k, z, tol);
+                    if c[top].mz >= wlo && c[top].mz <= whi {
+                        return true;
+                    }
+                }
+            }
+        }
+        i += 1;
+    }
+    false
+}
+
 /// The most intense unconsumed centroid with S/N of at least 3 whose M+2 window holds `mono`.
 fn lower_mono(c: &[Centroid], mono: usize, z: u8, tol: f64, consumed: &[bool]) -> Option<usize> {
     let zf = f64::from(z);
@@ -247,6 +285,9 @@ pub fn find_clusters(
         let z = if high { detect_charge(c, mono, tol, settings.max_charge) } else { 1 };
         let shells_len = halogen::shells_needed(m.mz * f64::from(z));
         let shells = collect_shells(c, mono, z, tol, shells_len, &stats);
+        if borrows_partners(c, mono, z, tol, &shells, settings) {
+            continue;
+        }
         let score = halogen::score(c, &shells, m.mz, z, high, tol, settings);
         if !(score.misfit <= settings.max_misfit) {
             continue;
@@ -330,5 +371,56 @@ mod tests {
         let mut c3 = c.clone();
         c3.insert(1, peak(300.5017, 200.0));
         assert_eq!(detect_charge(&c3, 0, 0.003, 3), 1);
+    }
+
+    #[test]
+    fn a_side_lobe_cannot_borrow_the_tall_peaks_isotopologues() {
+        // A C20 ion at m/z 300 (13C about 22 %, 13C2 about 2.3 %: common practice) with a side
+        // lobe at 3 % of its height one FWHM above. The lobe's M+1 and M+2 windows hold the
+        // tall ion's 13C and 13C2 peaks, which look like a Br1 pair (M+2/M about 0.8).
+        let fwhm = 300.0 / 60_000.0;
+        let at = |mz: f64, intensity: f64, snr: f64| Centroid {
+            mz,
+            intensity,
+            area: intensity,
+            snr,
+            fwhm,
+        };
+        let c = vec![
+            at(300.0, 1000.0, 1000.0),
+            at(300.0 + fwhm, 30.0, 30.0),
+            at(301.00336, 220.0, 220.0),
+            at(302.00671, 23.0, 23.0),
+        ];
+        let s = FlagSettings::default();
+        let stats = SpectrumStats::of(&c);
+        let tol = 300.0 * 10e-6;
+        let lobe = collect_shells(&c, 1, 1, tol, 5, &stats);
+        assert_eq!(lobe.top[2], Some(3), "test setup: the lobe's M+2 window holds 13C2");
+        assert!(borrows_partners(&c, 1, 1, tol, &lobe, &s));
+        // The tall ion itself borrows nothing (no taller neighbour).
+        let tall = collect_shells(&c, 0, 1, tol, 5, &stats);
+        assert!(!borrows_partners(&c, 0, 1, tol, &tall, &s));
+        // Off: ratio above the heights' ratio.
+        let off = FlagSettings { side_lobe_ratio: 50.0, ..FlagSettings::default() };
+        assert!(!borrows_partners(&c, 1, 1, tol, &lobe, &off));
+        // A weak ion 0.02 u below (4 FWHM) with its own M+1 and M+2 is not a side lobe.
+        let mut d = c.clone();
+        d[1] = at(299.98, 30.0, 30.0);
+        d.push(at(299.98 + 1.00336, 3.0, 3.0));
+        d.push(at(299.98 + 1.99705, 10.0, 10.0));
+        d.sort_by(|a, b| a.mz.total_cmp(&b.mz));
+        let stats = SpectrumStats::of(&d);
+        let own = collect_shells(&d, 0, 1, tol, 5, &stats);
+        assert!(!borrows_partners(&d, 0, 1, tol, &own, &s));
+        // find_clusters drops the lobe as a cluster start.
+        let found = find_clusters(&c, Tolerance::Ppm(10.0), true, &s);
+        assert!(found.iter().all(|cl| cl.mono != 1));
+        let unruled = FlagSettings { side_lobe_fwhm: 0.0, ..FlagSettings::default() };
+        let found = find_clusters(&c, Tolerance::Ppm(10.0), true, &unruled);
+        assert!(
+            found.iter().any(|cl| cl.mono == 1),
+            "test setup: without the rule the lobe is a cluster"
+        );
     }
 }

@@ -64,6 +64,12 @@ pub struct Species {
     pub ms1_fragments: Vec<(f64, f64)>,
     /// Monoisotopic product ions in MS2, relative intensity (1 = 100 %).
     pub products: Vec<(f64, f64)>,
+    /// `molecular` for the compound's main ion, `adduct` for a further ion of the run.
+    pub role: &'static str,
+    /// Elemental composition of the ion.
+    pub ion_formula: Formula,
+    /// EI fragment ions given by formula: monoisotopic m/z and composition.
+    pub fragment_ions: Vec<(f64, Formula)>,
 }
 
 impl Species {
@@ -246,12 +252,14 @@ impl Acquisition {
             let rad = radical(&inst);
             let mut ms1_fragments = Vec::new();
             let mut products = Vec::new();
+            let mut fragment_ions = Vec::new();
             for fr in &c.fragments {
                 let rel = fr.relative / 100.0;
                 match (&fr.formula, fr.mz) {
                     (Some(f), None) => {
                         let atoms = Formula::parse(f)?;
                         products.push((rad.mz(&atoms)?, rel));
+                        fragment_ions.push((rad.mz(&atoms)?, atoms.clone()));
                         for (m, r) in cluster(&atoms, &rad, &inst)? {
                             ms1_fragments.push((m, r * rel));
                         }
@@ -270,18 +278,49 @@ impl Acquisition {
             }
             if inst.ionization != Source::Ei {
                 ms1_fragments.clear();
+                fragment_ions.clear();
+            }
+            let elution = Elution::new(rc.rt_apex_min, rc.width_min, rc.tailing_min);
+            for extra in &rc.adducts {
+                check(extra.relative >= 0.0, || {
+                    format!("run {}, {}: adduct relative must be >= 0", run.file, rc.name)
+                })?;
+                let a = IonType::parse(&extra.ion)?;
+                check(a.charge().signum() == want, || {
+                    format!("run {}, {}: ion {a} does not match the polarity", run.file, rc.name)
+                })?;
+                let atoms = a.ion_formula(&formula)?;
+                let acl = cluster(&atoms, &a, &inst)?;
+                species.push(Species {
+                    name: c.name.clone(),
+                    precursor_mz: tallest(&acl),
+                    formula: formula.clone(),
+                    mz: a.mz(&formula)?,
+                    ion: a,
+                    elution,
+                    abundance: rc.abundance * extra.relative / 100.0,
+                    cluster: acl,
+                    ms1_fragments: Vec::new(),
+                    products: Vec::new(),
+                    role: "adduct",
+                    ion_formula: atoms,
+                    fragment_ions: Vec::new(),
+                });
             }
             species.push(Species {
                 name: c.name.clone(),
                 precursor_mz: tallest(&cl),
+                ion_formula: ion.ion_formula(&formula)?,
                 formula,
                 ion,
                 mz,
-                elution: Elution::new(rc.rt_apex_min, rc.width_min, rc.tailing_min),
+                elution,
                 abundance: rc.abundance,
                 cluster: cl,
                 ms1_fragments,
                 products,
+                role: "molecular",
+                fragment_ions,
             });
         }
         let mut background = Vec::new();
@@ -476,6 +515,17 @@ impl Acquisition {
                 }
                 for &(m, h) in &self.background {
                     out.push((jitter(m, rng), h));
+                }
+                if let Some(lobes) = &inst.side_lobes {
+                    let n = out.len();
+                    for k in 0..n {
+                        let (m, h) = out[k];
+                        if h >= lobes.min_height {
+                            let d = lobes.offset_fwhm * self.fwhm(m);
+                            out.push((m - d, h * lobes.relative));
+                            out.push((m + d, h * lobes.relative));
+                        }
+                    }
                 }
                 for _ in 0..grass {
                     let m = lo + (hi - lo) * rng.uniform();
@@ -754,29 +804,42 @@ impl Acquisition {
         if level > 0.0 { level } else { 1.0 }
     }
 
-    /// The ground truth of the run: one row per compound.
+    /// The ground truth of the run: one row per ion of each compound (its main ion with role
+    /// `molecular`, each further ion `adduct`, each EI fragment given by formula `fragment`),
+    /// with the neutral's formula and counts on every row. `mono_snr` is the main ion's.
     pub fn truth(&self) -> Vec<TruthRow> {
         let noise = self.noise_level();
-        self.species
-            .iter()
-            .map(|s| {
-                let rule = s.formula.nitrogen_rule();
-                TruthRow {
+        let mut rows = Vec::new();
+        for s in &self.species {
+            let rule = s.formula.nitrogen_rule();
+            let main = self
+                .species
+                .iter()
+                .find(|m| m.name == s.name && m.role == "molecular")
+                .unwrap_or(s);
+            let row =
+                |ion_type: String, charge: i32, mz: f64, role: &str, ion: &Formula| TruthRow {
                     compound: s.name.clone(),
                     formula: s.formula.hill(),
-                    ion_type: s.ion.shell_name(),
-                    charge: s.ion.charge(),
-                    mz: s.mz,
+                    ion_type,
+                    charge,
+                    mz,
                     rt_apex_min: s.elution.apex(),
                     n_cl: s.formula.count("Cl"),
                     n_br: s.formula.count("Br"),
                     n_n: s.formula.count("N"),
                     nominal_mass: rule.nominal_mass,
                     odd_nominal: rule.nominal_mass % 2 != 0,
-                    mono_snr: s.abundance * s.mono_relative() / noise,
-                }
-            })
-            .collect()
+                    mono_snr: main.abundance * main.mono_relative() / noise,
+                    role: role.to_string(),
+                    ion_formula: ion.hill(),
+                };
+            rows.push(row(s.ion.shell_name(), s.ion.charge(), s.mz, s.role, &s.ion_formula));
+            for (mz, f) in &s.fragment_ions {
+                rows.push(row("fragment".into(), s.ion.charge(), *mz, "fragment", f));
+            }
+        }
+        rows
     }
 }
 
@@ -834,10 +897,21 @@ pub struct TruthRow {
     /// instrument's noise level (baseline standard deviation; for centroid output at least the
     /// mean height of the random noise peaks).
     pub mono_snr: f64,
+    /// `molecular` (the compound's main ion), `adduct` (a further ion) or `fragment` (an EI
+    /// fragment given by formula).
+    #[serde(default = "molecular_role")]
+    pub role: String,
+    /// Elemental composition of the ion (empty in files written before the column existed).
+    #[serde(default)]
+    pub ion_formula: String,
+}
+
+fn molecular_role() -> String {
+    "molecular".into()
 }
 
 /// The header of a truth TSV.
-pub const TRUTH_COLUMNS: [&str; 12] = [
+pub const TRUTH_COLUMNS: [&str; 14] = [
     "compound",
     "formula",
     "ion_type",
@@ -850,6 +924,8 @@ pub const TRUTH_COLUMNS: [&str; 12] = [
     "nominal_mass",
     "odd_nominal",
     "mono_snr",
+    "role",
+    "ion_formula",
 ];
 
 /// Writes truth rows as TSV with a header line (m/z to 6 decimals).
@@ -858,7 +934,7 @@ pub fn write_truth<W: Write>(rows: &[TruthRow], mut out: W) -> Result<()> {
     t.push('\n');
     for r in rows {
         t.push_str(&format!(
-            "{}\t{}\t{}\t{}\t{:.6}\t{}\t{}\t{}\t{}\t{}\t{}\t{:.1}\n",
+            "{}\t{}\t{}\t{}\t{:.6}\t{}\t{}\t{}\t{}\t{}\t{}\t{:.1}\t{}\t{}\n",
             r.compound,
             r.formula,
             r.ion_type,
@@ -870,7 +946,9 @@ pub fn write_truth<W: Write>(rows: &[TruthRow], mut out: W) -> Result<()> {
             r.n_n,
             r.nominal_mass,
             r.odd_nominal,
-            r.mono_snr
+            r.mono_snr,
+            r.role,
+            r.ion_formula
         ));
     }
     out.write_all(t.as_bytes())?;

@@ -115,6 +115,9 @@ fn matches(t: &TruthRow, f: &Feature) -> bool {
 
 /// Compares one file's features with its truth rows.
 pub fn evaluate(truth: &[TruthRow], features: &[Feature]) -> Evaluation {
+    // One row per compound: its main ion (adduct and fragment rows are for compound scoring).
+    let truth: Vec<TruthRow> = truth.iter().filter(|t| t.role == "molecular").cloned().collect();
+    let truth = truth.as_slice();
     let mut e = Evaluation::default();
     let halogen: Vec<&Feature> = features.iter().filter(|f| f.halogen).collect();
     for t in truth {
@@ -182,6 +185,255 @@ pub fn evaluate(truth: &[TruthRow], features: &[Feature]) -> Evaluation {
             e.other_halogen_features += 1;
         } else {
             e.false_positives += 1;
+        }
+    }
+    e
+}
+
+/// Compound-level counts over one or more files (see [`evaluate_compounds`]).
+///
+/// Matching: a reported compound *is* truth compound t when its neutral mass is within
+/// 10 ppm (high resolution) or 0.5 u (unit) of t's and t's apex lies inside the compound's
+/// time range widened by 0.1 min. A compound whose molecular-ion m/z instead matches one of
+/// t's adduct or fragment ions (same tolerance on m/z, same time rule) and not t's neutral is
+/// a *misassigned* ion: a fragment or adduct reported as a molecule of its own.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct CompoundEvaluation {
+    /// Halogenated truth compounds with mono S/N >= [`STRONG_SNR`]: found as a halogen
+    /// compound with the right neutral mass, missed.
+    pub strong_found: usize,
+    /// See `strong_found`.
+    pub strong_missed: usize,
+    /// Of the strong ones found, with the exact (n_cl, n_br) of the neutral.
+    pub strong_exact: usize,
+    /// Halogen calls that are right: the neutral of a halogenated truth compound.
+    pub true_calls: usize,
+    /// Halogen calls that are wrong: on nothing true, on a halogen-free neutral, or on a
+    /// misassigned ion of a compound with mono S/N >= [`STRONG_SNR`].
+    pub false_calls: usize,
+    /// Halogen calls on misassigned ions of weak compounds (mono S/N below the stratum),
+    /// counted apart.
+    pub weak_misassigned_calls: usize,
+    /// Halogen calls that are chloride adducts of halogen-free molecules.
+    pub chloride_adduct_calls: usize,
+    /// Misassigned ions (fragments or adducts reported as molecules) of strong compounds
+    /// that the relation tables cover (adducts of the table; fragments whose loss from the
+    /// main ion is a listed loss or two).
+    pub strong_misassigned: usize,
+    /// Misassigned fragments of strong compounds by a loss outside the tables (they stay
+    /// compounds of their own by design), with the halogen calls on them counted apart.
+    pub unlisted_fragments: usize,
+    /// Nitrogen rule on compounds that match a truth compound: right, wrong, undecided.
+    pub parity: (usize, usize, usize),
+    /// (halogen probability, right) for every compound whose neutral carries a Cl/Br
+    /// hypothesis, for the reliability table. Right means the ion truly carries Cl or Br.
+    pub probabilities: Vec<(f64, bool)>,
+    /// Names of strong halogenated compounds missed or found with other counts.
+    pub misses: Vec<String>,
+}
+
+impl CompoundEvaluation {
+    /// Recall of strong halogenated compounds.
+    pub fn recall(&self) -> f64 {
+        self.strong_found as f64 / (self.strong_found + self.strong_missed).max(1) as f64
+    }
+
+    /// Precision of halogen calls (weak compounds' misassigned ions aside).
+    pub fn precision(&self) -> f64 {
+        self.true_calls as f64 / (self.true_calls + self.false_calls).max(1) as f64
+    }
+
+    /// Exact (n_cl, n_br) among strong compounds found.
+    pub fn exact(&self) -> f64 {
+        self.strong_exact as f64 / self.strong_found.max(1) as f64
+    }
+
+    /// Right share of decided nitrogen-rule calls, and the undecided share of all.
+    pub fn parity_right(&self) -> (f64, f64) {
+        let (r, w, u) = self.parity;
+        (r as f64 / (r + w).max(1) as f64, u as f64 / (r + w + u).max(1) as f64)
+    }
+
+    /// Adds another file's counts.
+    pub fn add(&mut self, o: CompoundEvaluation) {
+        self.strong_found += o.strong_found;
+        self.strong_missed += o.strong_missed;
+        self.strong_exact += o.strong_exact;
+        self.true_calls += o.true_calls;
+        self.false_calls += o.false_calls;
+        self.weak_misassigned_calls += o.weak_misassigned_calls;
+        self.chloride_adduct_calls += o.chloride_adduct_calls;
+        self.strong_misassigned += o.strong_misassigned;
+        self.unlisted_fragments += o.unlisted_fragments;
+        self.parity.0 += o.parity.0;
+        self.parity.1 += o.parity.1;
+        self.parity.2 += o.parity.2;
+        self.probabilities.extend(o.probabilities);
+        self.misses.extend(o.misses);
+    }
+
+    /// The reliability table of the halogen probability: per bin `[lo, hi)` of
+    /// `edges` the calls in it, their mean probability and the fraction right.
+    pub fn reliability(&self, edges: &[f64]) -> Vec<ReliabilityBin> {
+        edges
+            .windows(2)
+            .map(|w| {
+                let last = w[1] >= 1.0;
+                let inside: Vec<&(f64, bool)> = self
+                    .probabilities
+                    .iter()
+                    .filter(|(p, _)| *p >= w[0] && (*p < w[1] || (last && *p <= w[1])))
+                    .collect();
+                let n = inside.len();
+                let mean = inside.iter().map(|x| x.0).sum::<f64>() / n.max(1) as f64;
+                let right = inside.iter().filter(|x| x.1).count();
+                ReliabilityBin { lo: w[0], hi: w[1], calls: n, mean_probability: mean, right }
+            })
+            .collect()
+    }
+}
+
+/// One bin of a reliability table.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ReliabilityBin {
+    /// Lower edge (inclusive).
+    pub lo: f64,
+    /// Upper edge (exclusive, inclusive for the last bin).
+    pub hi: f64,
+    /// Calls with a probability in the bin.
+    pub calls: usize,
+    /// Their mean probability.
+    pub mean_probability: f64,
+    /// Of them, right.
+    pub right: usize,
+}
+
+impl ReliabilityBin {
+    /// Observed fraction right (0 when empty).
+    pub fn observed(&self) -> f64 {
+        self.right as f64 / self.calls.max(1) as f64
+    }
+}
+
+fn neutral_of(t: &TruthRow) -> f64 {
+    crate::chem::Formula::parse(&t.formula).map_or(f64::NAN, |f| f.monoisotopic_mass())
+}
+
+fn ion_has_halogen(t: &TruthRow) -> bool {
+    match crate::chem::Formula::parse(&t.ion_formula) {
+        Ok(f) if !t.ion_formula.is_empty() => f.count("Cl") + f.count("Br") > 0,
+        _ => t.n_cl + t.n_br > 0,
+    }
+}
+
+/// Whether a compound's Cl/Br hypothesis is true: `None` when its neutral carries none;
+/// else true when it is the neutral of a halogenated truth compound, or when its molecular ion
+/// is a truth ion (adduct, fragment) whose composition carries Cl or Br. Anything else (noise,
+/// background, side lobes, halogen-free molecules) is false. The labels behind the
+/// reliability table and the calibration fit.
+pub fn halogen_truth(truth: &[TruthRow], c: &crate::compound::Compound) -> Option<bool> {
+    if c.n_cl + c.n_br == 0 {
+        return None;
+    }
+    let unit = c.resolution != "high";
+    let tol = |x: f64| if unit { 0.5 } else { x.abs() * 10e-6 };
+    let in_time =
+        |t: &TruthRow| t.rt_apex_min >= c.rt_start_min - 0.1 && t.rt_apex_min <= c.rt_end_min + 0.1;
+    let neutral = truth.iter().filter(|t| t.role == "molecular").find(|t| {
+        let m = neutral_of(t);
+        c.neutral_mass.is_some_and(|n| (n - m).abs() <= tol(m)) && in_time(t)
+    });
+    if let Some(t) = neutral {
+        return Some(t.n_cl + t.n_br > 0);
+    }
+    let ion = truth.iter().find(|t| (t.mz - c.molecular_ion_mz).abs() <= tol(t.mz) && in_time(t));
+    Some(ion.is_some_and(ion_has_halogen))
+}
+
+/// True when a truth ion relates to its compound's main ion by the default tables: an adduct,
+/// or a fragment whose composition differs from the main ion's by one or two listed losses.
+fn listed_relation(truth: &[TruthRow], t: &TruthRow) -> bool {
+    if t.role != "fragment" {
+        return true;
+    }
+    let Some(main) = truth.iter().find(|m| m.compound == t.compound && m.role == "molecular")
+    else {
+        return false;
+    };
+    let d = main.mz - t.mz;
+    crate::compound::Relations::defaults().losses.iter().any(|l| (l.mass - d).abs() <= 0.01)
+}
+
+/// Compares one file's compounds with its truth rows (see [`CompoundEvaluation`]).
+pub fn evaluate_compounds(
+    truth: &[TruthRow],
+    compounds: &[crate::compound::Compound],
+) -> CompoundEvaluation {
+    let mut e = CompoundEvaluation::default();
+    let unit = |c: &crate::compound::Compound| c.resolution != "high";
+    let tol = |c: &crate::compound::Compound, x: f64| if unit(c) { 0.5 } else { x.abs() * 10e-6 };
+    let in_time = |c: &crate::compound::Compound, t: &TruthRow| {
+        t.rt_apex_min >= c.rt_start_min - 0.1 && t.rt_apex_min <= c.rt_end_min + 0.1
+    };
+    let is_neutral = |c: &crate::compound::Compound, t: &TruthRow| {
+        let m = neutral_of(t);
+        c.neutral_mass.is_some_and(|n| (n - m).abs() <= tol(c, m)) && in_time(c, t)
+    };
+    let main: Vec<&TruthRow> = truth.iter().filter(|t| t.role == "molecular").collect();
+    for c in compounds {
+        let neutral = main.iter().find(|t| is_neutral(c, t));
+        let ion = truth
+            .iter()
+            .find(|t| (t.mz - c.molecular_ion_mz).abs() <= tol(c, t.mz) && in_time(c, t));
+        let misassigned = neutral.is_none() && ion.is_some_and(|t| t.role != "molecular");
+        let unlisted = misassigned && ion.is_some_and(|t| !listed_relation(truth, t));
+        let strong_parent = ion.is_some_and(|t| t.mono_snr >= STRONG_SNR) && !unlisted;
+        if misassigned && ion.is_some_and(|t| t.mono_snr >= STRONG_SNR) {
+            if unlisted {
+                e.unlisted_fragments += 1;
+            } else {
+                e.strong_misassigned += 1;
+            }
+        }
+        if let Some(right) = halogen_truth(truth, c) {
+            e.probabilities.push((c.halogen_probability, right));
+        }
+        if c.halogen {
+            match neutral {
+                Some(t) if t.n_cl + t.n_br > 0 => e.true_calls += 1,
+                _ if misassigned && !strong_parent => e.weak_misassigned_calls += 1,
+                _ => e.false_calls += 1,
+            }
+            if neutral.is_none()
+                && ion.is_some_and(|t| t.ion_type.contains("Cl") && t.n_cl + t.n_br == 0)
+            {
+                e.chloride_adduct_calls += 1;
+            }
+        }
+        if let Some(t) = neutral {
+            match c.odd_nominal {
+                crate::flag::OddNominal::True if t.odd_nominal => e.parity.0 += 1,
+                crate::flag::OddNominal::False if !t.odd_nominal => e.parity.0 += 1,
+                crate::flag::OddNominal::Undecided => e.parity.2 += 1,
+                _ => e.parity.1 += 1,
+            }
+        }
+    }
+    for t in main.iter().filter(|t| t.n_cl + t.n_br > 0 && t.mono_snr >= STRONG_SNR) {
+        let hit = compounds.iter().find(|c| c.halogen && is_neutral(c, t));
+        match hit {
+            Some(c) => {
+                e.strong_found += 1;
+                let exact = u32::from(c.n_cl) == t.n_cl && u32::from(c.n_br) == t.n_br;
+                e.strong_exact += usize::from(exact);
+                if !exact {
+                    e.misses.push(format!("{} as Cl{}Br{}", t.compound, c.n_cl, c.n_br));
+                }
+            }
+            None => {
+                e.strong_missed += 1;
+                e.misses.push(format!("{} missed", t.compound));
+            }
         }
     }
     e

@@ -252,12 +252,39 @@ pub struct Instrument {
     /// Chemical background ions present in every scan.
     #[serde(default)]
     pub background: Vec<Background>,
+    /// Side lobes or shoulders beside intense peaks (Fourier-transform analysers show them).
+    #[serde(default)]
+    pub side_lobes: Option<SideLobes>,
     /// Array encodings.
     #[serde(default)]
     pub encoding: Encoding,
     /// Write scan start times in seconds instead of minutes.
     #[serde(default)]
     pub rt_in_seconds: bool,
+}
+
+/// Side lobes: beside every peak at least `min_height` tall, one peak on each side at
+/// `offset_fwhm` FWHM, `relative` times its height.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SideLobes {
+    /// Least height of a peak that shows lobes.
+    pub min_height: f64,
+    /// Height of a lobe relative to its peak (e.g. 0.03).
+    pub relative: f64,
+    /// Distance of a lobe from its peak, in FWHM of the peak.
+    pub offset_fwhm: f64,
+}
+
+/// A further ion of a compound in one run: an adduct, multimer or in-source fragment
+/// (any ion type, e.g. `M+Na`, `M+Cl`, `2M+H`, `M+H-H2O`, `M-H-HCl`).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ExtraIon {
+    /// Ion type.
+    pub ion: String,
+    /// Height of its tallest peak, percent of the main ion's tallest peak.
+    pub relative: f64,
 }
 
 /// A compound of the library.
@@ -344,6 +371,9 @@ pub struct RunCompound {
     pub tailing_min: f64,
     /// Apex height of the tallest peak of the molecular ion's isotope cluster.
     pub abundance: f64,
+    /// Further ions of the compound (adducts, multimers, in-source fragments), co-eluting.
+    #[serde(default)]
+    pub adducts: Vec<ExtraIon>,
 }
 
 impl Scenario {
