@@ -103,7 +103,7 @@ instrument = "tof"
     assert_eq!(written.keys().collect::<Vec<_>>(), ["one.mzML", "one.truth.tsv"]);
     let truth = String::from_utf8(written["one.truth.tsv"].clone()).unwrap();
     let (header, rows) = tsv(&truth);
-    assert_eq!(header.len(), 12);
+    assert_eq!(header.len(), 14);
     assert_eq!(header[11], "mono_snr");
     // Diclofenac [M+H]+ C14H12Cl2NO2+: 296.0240 (chem module's worked example, 296.02396).
     assert_eq!(&rows[0][..4], ["diclofenac", "C14H11Cl2NO2", "M+H", "1"]);

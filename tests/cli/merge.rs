@@ -16,8 +16,8 @@ fn batch_without_seconds(out: &Path) -> String {
         .lines()
         .map(|l| {
             let cells: Vec<&str> = l.split('\t').collect();
-            assert_eq!(cells.len(), 14, "{l}");
-            cells[..13].join("\t")
+            assert_eq!(cells.len(), 16, "{l}");
+            cells[..15].join("\t")
         })
         .collect::<Vec<_>>()
         .join("\n")
@@ -81,7 +81,7 @@ fn one_file_runs_merged_equal_one_run() {
     args.extend(["-o", "merged"]);
     ok(d, &args);
     let (single, merged) = (reports(&d.join("single")), reports(&d.join("merged")));
-    assert_eq!(single.len(), 1 + 3 * 3);
+    assert_eq!(single.len(), 1 + 3 * 6);
     assert_eq!(single, merged);
     // run.json: the same inputs in the same order, and where they came from.
     let run = |p: &str| -> serde_json::Value { serde_json::from_str(&read(&d.join(p))).unwrap() };

@@ -69,7 +69,7 @@ fn reports_are_identical_for_one_and_two_threads() {
         assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     }
     let (a, b) = (reports(&dir.path().join("out1")), reports(&dir.path().join("out2")));
-    assert_eq!(a.len(), 1 + 3 * 3, "{a:?}");
+    assert_eq!(a.len(), 1 + 3 * 6, "{a:?}");
     assert_eq!(a, b);
     // run.json holds the version, the parameters, the inputs' SHA-256 and the caution.
     let run: serde_json::Value =
