@@ -342,7 +342,7 @@ fn generation_is_deterministic_and_depends_on_the_seed() {
 fn truth_tables_have_the_agreed_columns_and_values() {
     assert_eq!(
         TRUTH_COLUMNS.join("\t"),
-        "compound\tformula\tion_type\tcharge\tmz\trt_apex_min\tn_cl\tn_br\tn_n\tnominal_mass\todd_nominal\tmono_snr"
+        "compound\tformula\tion_type\tcharge\tmz\trt_apex_min\tn_cl\tn_br\tn_n\tnominal_mass\todd_nominal\tmono_snr\trole\tion_formula"
     );
     let demo = Scenario::demo();
     let mut rows = Vec::new();

@@ -41,6 +41,8 @@ fn kind(column: &str) -> Kind {
         "unreadable_spectra",
         "compound",
         "precursor_charge",
+        "halogen_compounds",
+        "odd_nominal_compounds",
     ];
     const MZ: &[&str] =
         &["mz", "m2_delta", "tolerance_da", "neutral_mass", "fwhm", "mz_min", "mz_max"];
@@ -54,6 +56,8 @@ fn kind(column: &str) -> Kind {
         "m4_ratio",
         "m4_expected",
         "snr",
+        "observed",
+        "expected",
     ];
     if INTEGER.contains(&column) {
         Kind::Integer
