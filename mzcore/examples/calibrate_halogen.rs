@@ -17,7 +17,7 @@ use mzcore::compound::{
     self, CALIBRATION, CompoundSettings, calibrated_probability, calibration_inputs,
 };
 use mzcore::screen::{ScreenConfig, screen_file};
-use mzcore::synth::evaluate::{halogen_truth, read_truth};
+use mzcore::synth::evaluate::{halogen_truth, truth_runs};
 use mzcore::synth::{Scenario, SizeOptions, generate};
 
 type Sample = ([f64; 7], bool);
@@ -29,16 +29,10 @@ fn samples(
     let config = ScreenConfig::default();
     let settings = CompoundSettings::default();
     let mut out = Vec::new();
-    let mut files: Vec<PathBuf> = std::fs::read_dir(dir)?
-        .filter_map(|e| e.ok().map(|e| e.path()))
-        .filter(|p| p.extension().is_some_and(|x| x == "mzML"))
-        .collect();
-    files.sort();
-    for path in files {
-        let truth = read_truth(&std::fs::read_to_string(path.with_extension("truth.tsv"))?)?;
+    for (path, truth) in truth_runs(dir)? {
         let report = screen_file(&path, &config, pool)?;
-        let mut features = report.features.clone();
         let ionization = report.compounds.first().map_or(String::new(), |c| c.ionization.clone());
+        let mut features = report.features;
         let g = compound::group(&mut features, report.summary.ms1, &ionization, &settings)?;
         for (c, e) in g.compounds.iter().zip(&g.evidence) {
             if let Some(right) = halogen_truth(&truth, c) {

@@ -9,7 +9,7 @@
 use std::path::PathBuf;
 
 use mzcore::screen::{ScreenConfig, screen_file};
-use mzcore::synth::evaluate::{CompoundEvaluation, evaluate_compounds, read_truth};
+use mzcore::synth::evaluate::{CompoundEvaluation, evaluate_compounds, truth_runs};
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let dirs: Vec<PathBuf> = std::env::args().skip(1).map(PathBuf::from).collect();
@@ -20,15 +20,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     let config = ScreenConfig::default();
     let mut all = CompoundEvaluation::default();
     for dir in &dirs {
-        let mut files: Vec<PathBuf> = std::fs::read_dir(dir)?
-            .filter_map(|e| e.ok().map(|e| e.path()))
-            .filter(|p| p.extension().is_some_and(|x| x == "mzML"))
-            .collect();
-        files.sort();
-        for path in files {
-            let truth_path = path.with_extension("truth.tsv");
-            let Ok(text) = std::fs::read_to_string(&truth_path) else { continue };
-            let truth = read_truth(&text)?;
+        for (path, truth) in truth_runs(dir)? {
             let report = screen_file(&path, &config, &pool)?;
             let e = evaluate_compounds(&truth, &report.compounds);
             println!(

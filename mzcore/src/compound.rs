@@ -658,7 +658,7 @@ fn best_ei(
     relations: &Relations,
     settings: &CompoundSettings,
 ) -> Hypothesis {
-    let mut best: Option<(Hypothesis, (u8, u8))> = None;
+    let mut best: Option<(Hypothesis, f64)> = None;
     for (i, &fi) in rest.iter().enumerate() {
         let p = &features[fi];
         if p.charge.abs() != 1 {
@@ -706,17 +706,15 @@ fn best_ei(
             halogens: revised,
             score: members.len(),
             rank: 0,
-            intensity: p.mz,
+            intensity: p.apex_intensity,
             members,
         };
-        if best.as_ref().is_none_or(|(b, _)| (h.score, h.intensity) > (b.score, b.intensity)) {
-            best = Some((h, winner));
+        // Ties to the higher m/z: the molecular ion stands above its fragments.
+        if best.as_ref().is_none_or(|(b, b_mz)| (h.score, p.mz) > (b.score, *b_mz)) {
+            best = Some((h, p.mz));
         }
     }
-    match best {
-        Some((h, _)) => h,
-        None => lone(features, rest),
-    }
+    best.map_or_else(|| lone(features, rest), |(h, _)| h)
 }
 
 /// The molecular ion's feature: the member explained as the table's earliest adduct (the
@@ -757,14 +755,6 @@ pub fn evidence(f: &Feature, ms1_scans: usize, settings: &CompoundSettings) -> E
         m2_correlation,
         background_level,
         high_resolution: f.resolution == Some(ResolutionClass::High),
-    }
-}
-
-fn resolution_name(r: Option<ResolutionClass>) -> &'static str {
-    match r {
-        Some(ResolutionClass::High) => "high",
-        Some(ResolutionClass::Unit) => "unit",
-        _ => "unknown",
     }
 }
 
@@ -883,7 +873,7 @@ fn compound_row(
         rt_end_min: end,
         polarity: if sign < 0 { "-" } else { "+" }.to_string(),
         ionization: ionization.to_string(),
-        resolution: resolution_name(f.resolution).to_string(),
+        resolution: f.resolution.map_or("unknown", ResolutionClass::name).to_string(),
         neutral_mass,
         nominal_mass,
         odd_nominal,

@@ -316,14 +316,6 @@ pub const FEATURE_COLUMNS: &[&str] = &[
     "compound",
 ];
 
-fn resolution_name(r: crate::centroid::ResolutionClass) -> &'static str {
-    match r {
-        crate::centroid::ResolutionClass::Unit => "unit",
-        crate::centroid::ResolutionClass::High => "high",
-        crate::centroid::ResolutionClass::Unknown => "unknown",
-    }
-}
-
 impl SpectrumRow {
     fn of(p: &ProcessedSpectrum, f: &SpectrumFlags) -> Self {
         let m = &p.meta;
@@ -340,7 +332,7 @@ impl SpectrumRow {
             intensity_sum: Some(p.stats.intensity_sum),
             base_peak_mz: p.stats.base_peak_mz,
             base_peak_intensity: p.stats.base_peak_intensity,
-            resolution: resolution_name(p.resolution),
+            resolution: p.resolution.name(),
             clusters: Some(f.clusters),
             flagged_ions: Some(f.ions.len()),
             has_halogen: Some(f.has_halogen),

@@ -32,6 +32,17 @@ pub enum ResolutionClass {
     Unknown,
 }
 
+impl ResolutionClass {
+    /// The lower-case name used in reports: `unit`, `high` or `unknown`.
+    pub fn name(self) -> &'static str {
+        match self {
+            ResolutionClass::Unit => "unit",
+            ResolutionClass::High => "high",
+            ResolutionClass::Unknown => "unknown",
+        }
+    }
+}
+
 /// An m/z tolerance, absolute or relative.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub enum Tolerance {

@@ -26,6 +26,22 @@ pub fn read_truth(text: &str) -> Result<Vec<TruthRow>> {
         .collect()
 }
 
+/// The synthetic acquisitions of a folder: every `<run>.mzML` that has a `<run>.truth.tsv`
+/// beside it (as [`super::generate`] writes them), by file name, with its truth rows.
+pub fn truth_runs(dir: &std::path::Path) -> Result<Vec<(std::path::PathBuf, Vec<TruthRow>)>> {
+    let mut files: Vec<std::path::PathBuf> = std::fs::read_dir(dir)?
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| p.extension().is_some_and(|x| x == "mzML"))
+        .collect();
+    files.sort();
+    let mut out = Vec::new();
+    for path in files {
+        let Ok(text) = std::fs::read_to_string(path.with_extension("truth.tsv")) else { continue };
+        out.push((path, read_truth(&text)?));
+    }
+    Ok(out)
+}
+
 /// Least expected monoisotopic S/N of the compounds the screening targets are stated for.
 pub const STRONG_SNR: f64 = 20.0;
 
@@ -326,33 +342,63 @@ fn ion_has_halogen(t: &TruthRow) -> bool {
     }
 }
 
+/// The truth rows a reported compound matches (see [`CompoundEvaluation`]): the truth
+/// compound whose neutral it is, and the truth ion its molecular ion is.
+struct Matched<'a> {
+    neutral: Option<&'a TruthRow>,
+    ion: Option<&'a TruthRow>,
+}
+
+/// True when compound `c` is the neutral of truth compound `t` (mass and time rules).
+fn is_neutral_of(c: &crate::compound::Compound, t: &TruthRow) -> bool {
+    let m = neutral_of(t);
+    t.role == "molecular"
+        && c.neutral_mass.is_some_and(|n| (n - m).abs() <= mass_tolerance(c, m))
+        && in_time(c, t)
+}
+
+fn mass_tolerance(c: &crate::compound::Compound, x: f64) -> f64 {
+    if c.resolution == "high" { x.abs() * 10e-6 } else { 0.5 }
+}
+
+fn in_time(c: &crate::compound::Compound, t: &TruthRow) -> bool {
+    t.rt_apex_min >= c.rt_start_min - 0.1 && t.rt_apex_min <= c.rt_end_min + 0.1
+}
+
+fn matched<'a>(truth: &'a [TruthRow], c: &crate::compound::Compound) -> Matched<'a> {
+    Matched {
+        neutral: truth.iter().find(|t| is_neutral_of(c, t)),
+        ion: truth.iter().find(|t| {
+            (t.mz - c.molecular_ion_mz).abs() <= mass_tolerance(c, t.mz) && in_time(c, t)
+        }),
+    }
+}
+
+impl Matched<'_> {
+    /// See [`halogen_truth`].
+    fn halogen_truth(&self, c: &crate::compound::Compound) -> Option<bool> {
+        if c.n_cl + c.n_br == 0 {
+            return None;
+        }
+        Some(match (self.neutral, self.ion) {
+            (Some(t), _) => t.n_cl + t.n_br > 0,
+            (None, ion) => ion.is_some_and(ion_has_halogen),
+        })
+    }
+}
+
 /// Whether a compound's Cl/Br hypothesis is true: `None` when its neutral carries none;
 /// else true when it is the neutral of a halogenated truth compound, or when its molecular ion
 /// is a truth ion (adduct, fragment) whose composition carries Cl or Br. Anything else (noise,
 /// background, side lobes, halogen-free molecules) is false. The labels behind the
 /// reliability table and the calibration fit.
 pub fn halogen_truth(truth: &[TruthRow], c: &crate::compound::Compound) -> Option<bool> {
-    if c.n_cl + c.n_br == 0 {
-        return None;
-    }
-    let unit = c.resolution != "high";
-    let tol = |x: f64| if unit { 0.5 } else { x.abs() * 10e-6 };
-    let in_time =
-        |t: &TruthRow| t.rt_apex_min >= c.rt_start_min - 0.1 && t.rt_apex_min <= c.rt_end_min + 0.1;
-    let neutral = truth.iter().filter(|t| t.role == "molecular").find(|t| {
-        let m = neutral_of(t);
-        c.neutral_mass.is_some_and(|n| (n - m).abs() <= tol(m)) && in_time(t)
-    });
-    if let Some(t) = neutral {
-        return Some(t.n_cl + t.n_br > 0);
-    }
-    let ion = truth.iter().find(|t| (t.mz - c.molecular_ion_mz).abs() <= tol(t.mz) && in_time(t));
-    Some(ion.is_some_and(ion_has_halogen))
+    matched(truth, c).halogen_truth(c)
 }
 
-/// True when a truth ion relates to its compound's main ion by the default tables: an adduct,
-/// or a fragment whose composition differs from the main ion's by one or two listed losses.
-fn listed_relation(truth: &[TruthRow], t: &TruthRow) -> bool {
+/// True when a truth ion relates to its compound's main ion by the tables: an adduct, or a
+/// fragment whose m/z lies one or two of the listed `losses` below the main ion's.
+fn listed_relation(truth: &[TruthRow], t: &TruthRow, losses: &[crate::compound::Loss]) -> bool {
     if t.role != "fragment" {
         return true;
     }
@@ -361,7 +407,7 @@ fn listed_relation(truth: &[TruthRow], t: &TruthRow) -> bool {
         return false;
     };
     let d = main.mz - t.mz;
-    crate::compound::Relations::defaults().losses.iter().any(|l| (l.mass - d).abs() <= 0.01)
+    losses.iter().any(|l| (l.mass - d).abs() <= 0.01)
 }
 
 /// Compares one file's compounds with its truth rows (see [`CompoundEvaluation`]).
@@ -370,23 +416,13 @@ pub fn evaluate_compounds(
     compounds: &[crate::compound::Compound],
 ) -> CompoundEvaluation {
     let mut e = CompoundEvaluation::default();
-    let unit = |c: &crate::compound::Compound| c.resolution != "high";
-    let tol = |c: &crate::compound::Compound, x: f64| if unit(c) { 0.5 } else { x.abs() * 10e-6 };
-    let in_time = |c: &crate::compound::Compound, t: &TruthRow| {
-        t.rt_apex_min >= c.rt_start_min - 0.1 && t.rt_apex_min <= c.rt_end_min + 0.1
-    };
-    let is_neutral = |c: &crate::compound::Compound, t: &TruthRow| {
-        let m = neutral_of(t);
-        c.neutral_mass.is_some_and(|n| (n - m).abs() <= tol(c, m)) && in_time(c, t)
-    };
+    let losses = crate::compound::Relations::defaults().losses;
     let main: Vec<&TruthRow> = truth.iter().filter(|t| t.role == "molecular").collect();
     for c in compounds {
-        let neutral = main.iter().find(|t| is_neutral(c, t));
-        let ion = truth
-            .iter()
-            .find(|t| (t.mz - c.molecular_ion_mz).abs() <= tol(c, t.mz) && in_time(c, t));
+        let m = matched(truth, c);
+        let (neutral, ion) = (m.neutral, m.ion);
         let misassigned = neutral.is_none() && ion.is_some_and(|t| t.role != "molecular");
-        let unlisted = misassigned && ion.is_some_and(|t| !listed_relation(truth, t));
+        let unlisted = misassigned && ion.is_some_and(|t| !listed_relation(truth, t, &losses));
         let strong_parent = ion.is_some_and(|t| t.mono_snr >= STRONG_SNR) && !unlisted;
         if misassigned && ion.is_some_and(|t| t.mono_snr >= STRONG_SNR) {
             if unlisted {
@@ -395,7 +431,7 @@ pub fn evaluate_compounds(
                 e.strong_misassigned += 1;
             }
         }
-        if let Some(right) = halogen_truth(truth, c) {
+        if let Some(right) = m.halogen_truth(c) {
             e.probabilities.push((c.halogen_probability, right));
         }
         if c.halogen {
@@ -420,7 +456,7 @@ pub fn evaluate_compounds(
         }
     }
     for t in main.iter().filter(|t| t.n_cl + t.n_br > 0 && t.mono_snr >= STRONG_SNR) {
-        let hit = compounds.iter().find(|c| c.halogen && is_neutral(c, t));
+        let hit = compounds.iter().find(|c| c.halogen && is_neutral_of(c, t));
         match hit {
             Some(c) => {
                 e.strong_found += 1;
