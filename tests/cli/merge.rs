@@ -81,7 +81,8 @@ fn one_file_runs_merged_equal_one_run() {
     args.extend(["-o", "merged"]);
     ok(d, &args);
     let (single, merged) = (reports(&d.join("single")), reports(&d.join("merged")));
-    assert_eq!(single.len(), 1 + 3 * 3);
+    // batch.tsv, then per file spectra, ions, features, compounds, traces and cluster.
+    assert_eq!(single.len(), 1 + 3 * 6);
     assert_eq!(single, merged);
     // run.json: the same inputs in the same order, and where they came from.
     let run = |p: &str| -> serde_json::Value { serde_json::from_str(&read(&d.join(p))).unwrap() };
